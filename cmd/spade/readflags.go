@@ -1,0 +1,53 @@
+package main
+
+import (
+	"github.com/spade-detect/spade/features"
+	"github.com/spf13/pflag"
+)
+
+// logOptions are the flags of every command that reads a dig log.
+type logOptions struct {
+	skipBad     bool
+	phaseOffset float64
+	format      string
+}
+
+func (o *logOptions) AddFlags(fs *pflag.FlagSet) {
+	fs.BoolVar(&o.skipBad, "skip-bad", false, "list bad rows and go on with the rest")
+	fs.Float64Var(&o.phaseOffset, "phase-offset", 0, "the phase `DEG` your instrument reports for ferrite; subtracted from every reading")
+	fs.StringVar(&o.format, "input-format", "", "csv or jsonl (default: by file name and content)")
+}
+
+func (o *logOptions) readOptions() features.ReadOptions {
+	return features.ReadOptions{SkipBad: o.skipBad, PhaseOffset: o.phaseOffset, Format: o.format}
+}
+
+// readLog reads a whole log (a file name, or - for standard input) and
+// reports what it skipped or ignored.
+func (g *globalOptions) readLog(name string, opts features.ReadOptions) (*features.Log, error) {
+	var log *features.Log
+	var err error
+	if name == "-" {
+		log, err = features.ReadLog(g.stdin, "-", opts)
+	} else {
+		log, err = features.ReadFile(name, opts)
+	}
+	if err != nil {
+		return nil, err
+	}
+	g.reportRead(log.Bad, log.Ignored)
+	return log, nil
+}
+
+// reportRead says once which rows were skipped and which columns ignored.
+func (g *globalOptions) reportRead(bad []*features.ParseError, ignored []string) {
+	for _, b := range bad {
+		g.note("skipped: %v", b)
+	}
+	if len(bad) > 0 {
+		g.note("skipped %d bad row(s)", len(bad))
+	}
+	if len(ignored) > 0 && g.verbose {
+		g.note("columns kept out of the model: %v", ignored)
+	}
+}

@@ -1,0 +1,151 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"runtime/debug"
+	"strings"
+
+	"github.com/spf13/cobra"
+)
+
+// version is the release; commit is set at build time with
+// -ldflags "-X main.commit=$(git rev-parse --short HEAD)", and otherwise read
+// from the build's VCS stamp when there is one.
+var (
+	version = "0.1.0"
+	commit  = ""
+)
+
+// Exit codes, listed in the root help.
+const (
+	exitOK    = 0
+	exitError = 1 // an error in the data or the run
+	exitUsage = 2 // a usage error: unknown flag, wrong arguments
+)
+
+// usageError marks a mistake in the command line.
+type usageError struct{ err error }
+
+func (u usageError) Error() string { return u.err.Error() }
+func (u usageError) Unwrap() error { return u.err }
+
+func usagef(format string, args ...any) error { return usageError{fmt.Errorf(format, args...)} }
+
+// globalOptions are the flags every command shares.
+type globalOptions struct {
+	quiet   bool
+	verbose bool
+	stdin   io.Reader
+	stdout  io.Writer
+	stderr  io.Writer
+	// isTerminal reports whether stderr is a terminal, for progress bars;
+	// tests leave it false.
+	isTerminal bool
+}
+
+func versionString() string {
+	c := commit
+	if c == "" {
+		c = "unknown"
+		if info, ok := debug.ReadBuildInfo(); ok {
+			for _, s := range info.Settings {
+				if s.Key == "vcs.revision" && len(s.Value) >= 7 {
+					c = s.Value[:12]
+				}
+			}
+		}
+	}
+	return fmt.Sprintf("%s (commit %s)", version, c)
+}
+
+const rootLong = `spade learns from your own dig history (every reading, with what actually came
+out of the ground) and gives, for a new multi-frequency reading, a probability
+per material and shape class instead of one number. It says whether a dig is
+worth it by your own values, warns when a reading could be ordnance, and shows
+which ID ranges are ambiguous on your ground with your machine.
+
+Safety: a possible-ordnance warning means do not dig: mark the spot and report
+it to the authorities. Permission, local law and heritage-reporting rules come
+first. A probability is never a guarantee.
+
+Exit codes:
+  0  success
+  1  an error in the data or the run (the message names file, line and column)
+  2  a usage error (unknown flag, missing argument)`
+
+func newRootCommand(g *globalOptions) *cobra.Command {
+	root := &cobra.Command{
+		Use:           "spade",
+		Short:         "Learn your own dig history; classify new detector readings",
+		Long:          rootLong,
+		Version:       versionString(),
+		SilenceUsage:  true,
+		SilenceErrors: true,
+		Example:       "  spade demo\n  spade train digs.csv -o my.spade\n  spade classify --model my.spade new.csv",
+	}
+	root.SetVersionTemplate("spade {{.Version}}\n")
+	root.PersistentFlags().BoolVarP(&g.quiet, "quiet", "q", false, "no progress display and no notes on stderr")
+	root.PersistentFlags().BoolVarP(&g.verbose, "verbose", "v", false, "more detail on stderr")
+	root.SetFlagErrorFunc(func(_ *cobra.Command, err error) error { return usageError{err} })
+	root.AddCommand(
+		newFeaturesCommand(g),
+	)
+	for _, c := range root.Commands() {
+		c.Args = wrapArgs(c.Args)
+	}
+	return root
+}
+
+// wrapArgs turns cobra's argument-count errors into usage errors.
+func wrapArgs(check cobra.PositionalArgs) cobra.PositionalArgs {
+	if check == nil {
+		return nil
+	}
+	return func(cmd *cobra.Command, args []string) error {
+		if err := check(cmd, args); err != nil {
+			return usageError{err}
+		}
+		return nil
+	}
+}
+
+// run executes one command line and returns the exit code; main and the
+// tests both call it.
+func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.Writer) int {
+	g := &globalOptions{stdin: stdin, stdout: stdout, stderr: stderr, isTerminal: stderrIsTerminal(stderr)}
+	root := newRootCommand(g)
+	root.SetArgs(args)
+	root.SetIn(stdin)
+	root.SetOut(stdout)
+	root.SetErr(stderr)
+	err := root.ExecuteContext(ctx)
+	if err == nil {
+		return exitOK
+	}
+	fmt.Fprintln(stderr, "spade: "+oneLine(err))
+	var ue usageError
+	switch {
+	case errors.As(err, &ue) || strings.HasPrefix(err.Error(), "unknown command"):
+		fmt.Fprintln(stderr, "Run 'spade --help' for usage.")
+		return exitUsage
+	case errors.Is(err, context.Canceled):
+		return exitError
+	default:
+		return exitError
+	}
+}
+
+// oneLine keeps an error message to its first line.
+func oneLine(err error) string {
+	s := err.Error()
+	if i := strings.IndexByte(s, '\n'); i >= 0 {
+		s = s[:i]
+	}
+	if errors.Is(err, context.Canceled) {
+		return "interrupted; nothing was written"
+	}
+	return s
+}

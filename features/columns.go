@@ -1,0 +1,229 @@
+package features
+
+import (
+	"fmt"
+	"math"
+	"slices"
+	"strconv"
+	"strings"
+	"time"
+)
+
+// columnKind says what a header column holds.
+type columnKind int
+
+const (
+	colIgnored columnKind = iota
+	colDig
+	colSite
+	colDate
+	colMaterial
+	colShape
+	colDepth
+	colDisplayID
+	colPhase
+	colAmp
+	colX
+	colR
+	colGroundPhase
+	colGroundAmp
+	colGroundX
+	colGroundR
+)
+
+var plainColumns = map[string]columnKind{
+	"dig": colDig, "site": colSite, "date": colDate, "material": colMaterial,
+	"shape": colShape, "depth_cm": colDepth, "display_id": colDisplayID,
+}
+
+// Longest prefixes first, so "ground_phase_" wins over "phase_".
+var readingPrefixes = []struct {
+	prefix string
+	kind   columnKind
+}{
+	{"ground_phase_", colGroundPhase}, {"ground_amp_", colGroundAmp},
+	{"ground_x_", colGroundX}, {"ground_r_", colGroundR},
+	{"phase_", colPhase}, {"amp_", colAmp}, {"x_", colX}, {"r_", colR},
+}
+
+// ParseHz reads a frequency in integer hertz, accepting a k suffix:
+// "8000", "8k" and "12.5k" are 8000, 8000 and 12500.
+func ParseHz(s string) (int, error) {
+	s = strings.ToLower(strings.TrimSpace(s))
+	mult := 1.0
+	if t, ok := strings.CutSuffix(s, "k"); ok {
+		s, mult = t, 1000
+	} else if t, ok := strings.CutSuffix(s, "hz"); ok {
+		s = t
+	}
+	v, err := strconv.ParseFloat(s, 64)
+	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
+		return 0, fmt.Errorf("%q is not a frequency in hertz", s)
+	}
+	hz := v * mult
+	if hz != math.Trunc(hz) || hz <= 0 || hz > 1e9 {
+		return 0, fmt.Errorf("frequency %q must be a whole number of hertz > 0", s)
+	}
+	return int(hz), nil
+}
+
+// classifyColumn names what one header cell holds.
+func classifyColumn(name string) (columnKind, int, error) {
+	if k, ok := plainColumns[name]; ok {
+		return k, 0, nil
+	}
+	for _, p := range readingPrefixes {
+		if rest, ok := strings.CutPrefix(name, p.prefix); ok {
+			hz, err := ParseHz(rest)
+			if err != nil {
+				return 0, 0, err
+			}
+			return p.kind, hz, nil
+		}
+	}
+	return colIgnored, 0, nil
+}
+
+// freqColumns are the column indices of one frequency's reading, -1 if absent.
+type freqColumns struct {
+	phase, amp, x, r                     int
+	groundPhase, groundAmp, groundX, groundR int
+}
+
+// schema is a parsed header.
+type schema struct {
+	index   map[columnKind]int // plain columns
+	names   []string           // lower-cased header cells
+	freqs   []int              // ascending
+	perFreq map[int]*freqColumns
+	ground  bool
+	ignored []string
+}
+
+func newFreqColumns() *freqColumns {
+	return &freqColumns{-1, -1, -1, -1, -1, -1, -1, -1}
+}
+
+func (f *freqColumns) slot(k columnKind) *int {
+	switch k {
+	case colPhase:
+		return &f.phase
+	case colAmp:
+		return &f.amp
+	case colX:
+		return &f.x
+	case colR:
+		return &f.r
+	case colGroundPhase:
+		return &f.groundPhase
+	case colGroundAmp:
+		return &f.groundAmp
+	case colGroundX:
+		return &f.groundX
+	default:
+		return &f.groundR
+	}
+}
+
+// parseHeader checks a header row; errors name the column.
+func parseHeader(file string, line int, cells []string) (*schema, error) {
+	s := &schema{index: map[columnKind]int{}, perFreq: map[int]*freqColumns{}}
+	herr := func(col string, format string, args ...any) error {
+		return &ParseError{File: file, Line: line, Column: col, Err: cause(ErrHeader, format, args...)}
+	}
+	seen := map[string]bool{}
+	for i, c := range cells {
+		name := strings.ToLower(strings.TrimSpace(c))
+		s.names = append(s.names, name)
+		if name == "" {
+			return nil, herr(fmt.Sprintf("column %d", i+1), "empty column name")
+		}
+		if seen[name] {
+			return nil, herr(name, "column appears twice")
+		}
+		seen[name] = true
+		kind, hz, err := classifyColumn(name)
+		if err != nil {
+			return nil, herr(name, "%v", err)
+		}
+		switch {
+		case kind == colIgnored:
+			s.ignored = append(s.ignored, name)
+		case hz == 0:
+			s.index[kind] = i
+		default:
+			fc := s.perFreq[hz]
+			if fc == nil {
+				fc = newFreqColumns()
+				s.perFreq[hz] = fc
+			}
+			slot := fc.slot(kind)
+			if *slot >= 0 {
+				return nil, herr(name, "same frequency as column %q", s.names[*slot])
+			}
+			*slot = i
+		}
+	}
+	for hz, fc := range s.perFreq {
+		polar, comps := fc.phase >= 0 || fc.amp >= 0, fc.x >= 0 || fc.r >= 0
+		switch {
+		case polar && comps:
+			return nil, herr(fmt.Sprintf("phase_%d", hz), "give phase/amp or x/r at %d Hz, not both", hz)
+		case !polar && !comps:
+			return nil, &ParseError{File: file, Line: line, Column: fmt.Sprintf("phase_%d", hz),
+				Err: cause(ErrMissingColumn, "ground reading at %d Hz but no target reading", hz)}
+		case polar && (fc.phase < 0 || fc.amp < 0):
+			return nil, &ParseError{File: file, Line: line, Column: fmt.Sprintf("amp_%d", hz),
+				Err: cause(ErrMissingColumn, "phase_%d and amp_%d go together", hz, hz)}
+		case comps && (fc.x < 0 || fc.r < 0):
+			return nil, &ParseError{File: file, Line: line, Column: fmt.Sprintf("r_%d", hz),
+				Err: cause(ErrMissingColumn, "x_%d and r_%d go together", hz, hz)}
+		}
+		gp, gc := fc.groundPhase >= 0 || fc.groundAmp >= 0, fc.groundX >= 0 || fc.groundR >= 0
+		if (gp && (fc.groundPhase < 0 || fc.groundAmp < 0)) || (gc && (fc.groundX < 0 || fc.groundR < 0)) || (gp && gc) {
+			return nil, herr(fmt.Sprintf("ground_phase_%d", hz), "ground reading at %d Hz needs ground_phase/ground_amp or ground_x/ground_r", hz)
+		}
+		if gp || gc {
+			s.ground = true
+		}
+		s.freqs = append(s.freqs, hz)
+	}
+	slices.Sort(s.freqs)
+	if len(s.freqs) == 0 {
+		return nil, &ParseError{File: file, Line: line, Column: "phase_<hz>",
+			Err: cause(ErrMissingColumn, "no reading columns (phase_<hz> and amp_<hz>, or x_<hz> and r_<hz>)")}
+	}
+	if s.ground {
+		for _, hz := range s.freqs {
+			fc := s.perFreq[hz]
+			if fc.groundPhase < 0 && fc.groundX < 0 {
+				return nil, &ParseError{File: file, Line: line, Column: fmt.Sprintf("ground_phase_%d", hz),
+					Err: cause(ErrMissingColumn, "ground readings must cover the same frequencies as the target's")}
+			}
+		}
+	}
+	return s, nil
+}
+
+// parseNumber reads one numeric cell; the caller names the column.
+func parseNumber(cell string) (float64, error) {
+	v, err := strconv.ParseFloat(strings.TrimSpace(cell), 64)
+	if err != nil {
+		return 0, cause(ErrNotNumber, "got %q", cell)
+	}
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return 0, cause(ErrNotFinite, "got %s", strings.TrimSpace(cell))
+	}
+	return v, nil
+}
+
+// checkDate accepts ISO 8601 calendar dates, YYYY-MM-DD.
+func checkDate(s string) error {
+	if _, err := time.Parse(time.DateOnly, s); err != nil {
+		return cause(ErrBadDate, "got %q", s)
+	}
+	return nil
+}
+
+// normaliseLabel case-folds and trims a material or shape.
+func normaliseLabel(s string) string { return strings.ToLower(strings.TrimSpace(s)) }

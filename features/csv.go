@@ -1,0 +1,182 @@
+package features
+
+import (
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"strings"
+)
+
+// csvSource parses RFC 4180 CSV with a header row.
+type csvSource struct {
+	rd     *Reader
+	cr     *csv.Reader
+	s      *schema
+	header int // line of the header row
+}
+
+func newCSVSource(r io.Reader, rd *Reader) (*csvSource, error) {
+	cr := csv.NewReader(r)
+	cr.Comment = '#'
+	cr.FieldsPerRecord = -1
+	cr.ReuseRecord = true
+	src := &csvSource{rd: rd, cr: cr}
+	rec, err := cr.Read()
+	if err == io.EOF {
+		return nil, &ParseError{File: rd.name, Err: fmt.Errorf("%w: the file is empty", ErrNoDigs)}
+	}
+	if err != nil {
+		return nil, csvSyntax(rd.name, err)
+	}
+	src.header, _ = cr.FieldPos(0)
+	s, err := parseHeader(rd.name, src.header, rec)
+	if err != nil {
+		return nil, err
+	}
+	src.s = s
+	rd.freqs, rd.ignored, rd.groundCol = s.freqs, s.ignored, s.ground
+	_, rd.displayCol = s.index[colDisplayID]
+	return src, nil
+}
+
+func csvSyntax(file string, err error) error {
+	var ce *csv.ParseError
+	if errors.As(err, &ce) {
+		return &ParseError{File: file, Line: ce.Line, Column: fmt.Sprintf("column %d", ce.Column), Err: fmt.Errorf("%w CSV: %v", ErrSyntax, ce.Err)}
+	}
+	return &ParseError{File: file, Err: fmt.Errorf("%w CSV: %v", ErrSyntax, err)}
+}
+
+func (c *csvSource) next() (Dig, error, bool) {
+	rec, err := c.cr.Read()
+	if err == io.EOF {
+		return Dig{}, io.EOF, false
+	}
+	if err != nil {
+		var ce *csv.ParseError
+		// A broken quote leaves the rest of the file unreadable; a short or
+		// long row does not.
+		fatal := !errors.As(err, &ce) || !errors.Is(ce.Err, csv.ErrFieldCount)
+		return Dig{}, csvSyntax(c.rd.name, err), fatal
+	}
+	line, _ := c.cr.FieldPos(0)
+	if len(rec) != len(c.s.names) {
+		return Dig{}, &ParseError{File: c.rd.name, Line: line,
+			Err: cause(ErrFieldCount, "the row has %d fields, the header %d", len(rec), len(c.s.names))}, false
+	}
+	d, err := c.row(line, rec)
+	return d, err, false
+}
+
+func (c *csvSource) row(line int, rec []string) (Dig, error) {
+	s := c.s
+	perr := func(col int, err error) error {
+		return &ParseError{File: c.rd.name, Line: line, Column: s.names[col], Err: err}
+	}
+	text := func(k columnKind) (string, int) {
+		if i, ok := s.index[k]; ok {
+			return strings.TrimSpace(rec[i]), i
+		}
+		return "", -1
+	}
+	d := Dig{Line: line, DepthCM: math.NaN(), DisplayID: math.NaN()}
+	d.ID, _ = text(colDig)
+	d.Site, _ = text(colSite)
+	m, _ := text(colMaterial)
+	sh, _ := text(colShape)
+	d.Material, d.Shape = normaliseLabel(m), normaliseLabel(sh)
+	if v, i := text(colDate); v != "" {
+		if err := checkDate(v); err != nil {
+			return d, perr(i, err)
+		}
+		d.Date = v
+	}
+	if v, i := text(colDepth); v != "" {
+		x, err := parseNumber(v)
+		if err == nil && x < 0 {
+			err = cause(ErrNegative, "got %g", x)
+		}
+		if err != nil {
+			return d, perr(i, err)
+		}
+		d.DepthCM = x
+	}
+	if v, i := text(colDisplayID); v != "" {
+		x, err := parseNumber(v)
+		if err != nil {
+			return d, perr(i, err)
+		}
+		d.DisplayID = x
+	}
+	d.Readings = make([]Reading, len(s.freqs))
+	groundCells := 0
+	var ground []Reading
+	if s.ground {
+		ground = make([]Reading, len(s.freqs))
+	}
+	for k, hz := range s.freqs {
+		fc := s.perFreq[hz]
+		polar := fc.phase >= 0
+		ia, ib := fc.x, fc.r
+		if polar {
+			ia, ib = fc.phase, fc.amp
+		}
+		rd, err := c.pair(hz, polar, rec, ia, ib, perr)
+		if err != nil {
+			return d, err
+		}
+		d.Readings[k] = rd
+		if !s.ground {
+			continue
+		}
+		gpolar := fc.groundPhase >= 0
+		ga, gb := fc.groundX, fc.groundR
+		if gpolar {
+			ga, gb = fc.groundPhase, fc.groundAmp
+		}
+		if strings.TrimSpace(rec[ga]) == "" && strings.TrimSpace(rec[gb]) == "" {
+			continue
+		}
+		groundCells++
+		g, err := c.pair(hz, gpolar, rec, ga, gb, perr)
+		if err != nil {
+			return d, err
+		}
+		ground[k] = g
+	}
+	switch {
+	case groundCells == len(s.freqs):
+		d.Ground = ground
+	case groundCells > 0:
+		return d, &ParseError{File: c.rd.name, Line: line, Column: "ground",
+			Err: cause(ErrFreqSet, "the ground reading covers %d of the log's %d frequencies", groundCells, len(s.freqs))}
+	}
+	return d, nil
+}
+
+// pair reads the two cells of one reading.
+func (c *csvSource) pair(hz int, polar bool, rec []string, ia, ib int, perr func(int, error) error) (Reading, error) {
+	va, vb := strings.TrimSpace(rec[ia]), strings.TrimSpace(rec[ib])
+	if va == "" || vb == "" {
+		col := ia
+		if va != "" {
+			col = ib
+		}
+		return Reading{}, perr(col, cause(ErrFreqSet, "no reading at %d Hz, which the header lists", hz))
+	}
+	a, err := parseNumber(va)
+	if err != nil {
+		return Reading{}, perr(ia, err)
+	}
+	b, err := parseNumber(vb)
+	if err != nil {
+		return Reading{}, perr(ib, err)
+	}
+	rd, which, err := readingFrom(hz, polar, a, b)
+	if err != nil {
+		return Reading{}, perr([]int{ia, ib}[which], err)
+	}
+	return rd, nil
+}

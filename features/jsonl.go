@@ -1,0 +1,233 @@
+package features
+
+import (
+	"bufio"
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"io"
+	"math"
+	"slices"
+	"strconv"
+	"strings"
+)
+
+// jsonlSource parses JSON Lines: one object per line, the CSV's names.
+type jsonlSource struct {
+	rd      *Reader
+	sc      *bufio.Scanner
+	line    int
+	ignored map[string]bool
+}
+
+func newJSONLSource(r io.Reader, rd *Reader) *jsonlSource {
+	sc := bufio.NewScanner(r)
+	sc.Buffer(make([]byte, 64<<10), 16<<20)
+	return &jsonlSource{rd: rd, sc: sc, ignored: map[string]bool{}}
+}
+
+func (j *jsonlSource) next() (Dig, error, bool) {
+	for j.sc.Scan() {
+		j.line++
+		b := bytes.TrimSpace(j.sc.Bytes())
+		if len(b) == 0 || b[0] == '#' {
+			continue
+		}
+		d, err := j.row(b)
+		return d, err, false
+	}
+	if err := j.sc.Err(); err != nil {
+		return Dig{}, &ParseError{File: j.rd.name, Line: j.line + 1, Err: fmt.Errorf("%w JSON Lines: %v", ErrSyntax, err)}, true
+	}
+	return Dig{}, io.EOF, false
+}
+
+type jsonReading struct {
+	Hz    json.RawMessage `json:"hz"`
+	Phase *float64        `json:"phase"`
+	Amp   *float64        `json:"amp"`
+	X     *float64        `json:"x"`
+	R     *float64        `json:"r"`
+}
+
+func (j *jsonlSource) row(b []byte) (Dig, error) {
+	perr := func(col string, err error) error {
+		return &ParseError{File: j.rd.name, Line: j.line, Column: col, Err: err}
+	}
+	var obj map[string]json.RawMessage
+	if err := json.Unmarshal(b, &obj); err != nil {
+		return Dig{}, perr("", fmt.Errorf("%w JSON: %v", ErrSyntax, err))
+	}
+	d := Dig{Line: j.line, DepthCM: math.NaN(), DisplayID: math.NaN()}
+	var readings, ground []jsonReading
+	haveReadings := false
+	for _, key := range sortedKeys(obj) {
+		raw := obj[key]
+		name := strings.ToLower(key)
+		var err error
+		switch name {
+		case "dig":
+			d.ID, err = jsonText(raw, true)
+		case "site":
+			d.Site, err = jsonText(raw, false)
+		case "date":
+			if d.Date, err = jsonText(raw, false); err == nil && d.Date != "" {
+				err = checkDate(d.Date)
+			}
+		case "material":
+			d.Material, err = jsonText(raw, false)
+			d.Material = normaliseLabel(d.Material)
+		case "shape":
+			d.Shape, err = jsonText(raw, false)
+			d.Shape = normaliseLabel(d.Shape)
+		case "depth_cm":
+			if d.DepthCM, err = jsonNumber(raw); err == nil && d.DepthCM < 0 {
+				err = cause(ErrNegative, "got %g", d.DepthCM)
+			}
+		case "display_id":
+			d.DisplayID, err = jsonNumber(raw)
+			if !j.rd.displayCol && j.rd.kept == 0 {
+				j.rd.displayCol = true
+			}
+		case "readings":
+			haveReadings = true
+			err = json.Unmarshal(raw, &readings)
+		case "ground":
+			if string(raw) != "null" {
+				err = json.Unmarshal(raw, &ground)
+			}
+		default:
+			if !j.ignored[name] {
+				j.ignored[name] = true
+				j.rd.ignored = append(j.rd.ignored, name)
+			}
+		}
+		if err != nil {
+			if _, ok := err.(*json.UnmarshalTypeError); ok {
+				err = fmt.Errorf("%w JSON: %v", ErrSyntax, err)
+			}
+			return d, perr(name, err)
+		}
+	}
+	if !haveReadings || len(readings) == 0 {
+		return d, perr("readings", cause(ErrMissingColumn, "a row needs a readings array"))
+	}
+	var err error
+	if d.Readings, err = j.convert("readings", readings, perr); err != nil {
+		return d, err
+	}
+	freqs := make([]int, len(d.Readings))
+	for i, r := range d.Readings {
+		freqs[i] = r.Hz
+	}
+	if j.rd.freqs == nil {
+		j.rd.freqs = freqs
+	} else if !slices.Equal(freqs, j.rd.freqs) {
+		return d, perr("readings", cause(ErrFreqSet, "this row has %v Hz, the log's first row %v Hz", freqs, j.rd.freqs))
+	}
+	if len(ground) > 0 {
+		if d.Ground, err = j.convert("ground", ground, perr); err != nil {
+			return d, err
+		}
+		gf := make([]int, len(d.Ground))
+		for i, g := range d.Ground {
+			gf[i] = g.Hz
+		}
+		if !slices.Equal(gf, freqs) {
+			return d, perr("ground", cause(ErrFreqSet, "the ground reading has %v Hz, the target's %v Hz", gf, freqs))
+		}
+		j.rd.groundCol = true
+	}
+	return d, nil
+}
+
+// convert checks an array of readings and sorts it by frequency.
+func (j *jsonlSource) convert(field string, in []jsonReading, perr func(string, error) error) ([]Reading, error) {
+	out := make([]Reading, 0, len(in))
+	for i, jr := range in {
+		at := fmt.Sprintf("%s[%d]", field, i)
+		hzText, err := jsonText(jr.Hz, true)
+		if err != nil || hzText == "" {
+			return nil, perr(at+".hz", cause(ErrMissingValue, "each reading needs hz"))
+		}
+		hz, err := ParseHz(hzText)
+		if err != nil {
+			return nil, perr(at+".hz", cause(ErrNotNumber, "%v", err))
+		}
+		polar := jr.Phase != nil || jr.Amp != nil
+		comps := jr.X != nil || jr.R != nil
+		var a, b *float64
+		names := [2]string{".phase", ".amp"}
+		switch {
+		case polar && comps:
+			return nil, perr(at, cause(ErrSyntax, "give phase and amp, or x and r, not both"))
+		case polar:
+			a, b = jr.Phase, jr.Amp
+		case comps:
+			a, b, names = jr.X, jr.R, [2]string{".x", ".r"}
+		default:
+			return nil, perr(at, cause(ErrMissingValue, "a reading needs phase and amp, or x and r"))
+		}
+		if a == nil {
+			return nil, perr(at+names[0], cause(ErrMissingValue, "%s goes with %s", names[0][1:], names[1][1:]))
+		}
+		if b == nil {
+			return nil, perr(at+names[1], cause(ErrMissingValue, "%s goes with %s", names[1][1:], names[0][1:]))
+		}
+		rd, which, err := readingFrom(hz, polar, *a, *b)
+		if err != nil {
+			return nil, perr(at+names[which], err)
+		}
+		for _, prev := range out {
+			if prev.Hz == hz {
+				return nil, perr(at+".hz", cause(ErrFreqSet, "%d Hz appears twice", hz))
+			}
+		}
+		out = append(out, rd)
+	}
+	slices.SortFunc(out, func(p, q Reading) int { return p.Hz - q.Hz })
+	return out, nil
+}
+
+func sortedKeys(m map[string]json.RawMessage) []string {
+	keys := make([]string, 0, len(m))
+	for k := range m {
+		keys = append(keys, k)
+	}
+	slices.Sort(keys)
+	return keys
+}
+
+// jsonText reads a string, or (when numbers is set) a number as its text.
+func jsonText(raw json.RawMessage, numbers bool) (string, error) {
+	if len(raw) == 0 || string(raw) == "null" {
+		return "", nil
+	}
+	var s string
+	if err := json.Unmarshal(raw, &s); err == nil {
+		return strings.TrimSpace(s), nil
+	}
+	if numbers {
+		var n json.Number
+		if err := json.Unmarshal(raw, &n); err == nil {
+			return n.String(), nil
+		}
+	}
+	return "", cause(ErrSyntax, "want a string, got %s", raw)
+}
+
+// jsonNumber reads a number; null is absent (NaN).
+func jsonNumber(raw json.RawMessage) (float64, error) {
+	if string(raw) == "null" {
+		return math.NaN(), nil
+	}
+	var n json.Number
+	if err := json.Unmarshal(raw, &n); err != nil {
+		return 0, cause(ErrNotNumber, "got %s", raw)
+	}
+	v, err := strconv.ParseFloat(n.String(), 64)
+	if err != nil || math.IsInf(v, 0) {
+		return 0, cause(ErrNotFinite, "got %s", raw)
+	}
+	return v, nil
+}

@@ -1,0 +1,263 @@
+package features
+
+import (
+	"bufio"
+	"bytes"
+	"errors"
+	"fmt"
+	"hash/fnv"
+	"io"
+	"math"
+	"os"
+	"strings"
+)
+
+// ReadOptions says how strict a reader is and what it needs.
+type ReadOptions struct {
+	// SkipBad lists every bad row in Reader.Bad and goes on with the rest;
+	// otherwise the first bad row is returned as the error.
+	SkipBad bool
+	// PhaseOffset is the phase, in degrees, that the user's instrument
+	// reports for a purely magnetic target; it is subtracted from every
+	// reading so that the log follows spade's convention.
+	PhaseOffset float64
+	// Require is the label every row must carry ("" requires none).
+	Require Label
+	// SkipUnlabelled skips rows without the required label, counting them
+	// in Reader.Unlabelled, instead of failing.
+	SkipUnlabelled bool
+	// Format is "csv", "jsonl", or "" to decide by file name and content.
+	Format string
+}
+
+// rowSource is one file format's row parser.
+type rowSource interface {
+	// next returns the next row, io.EOF at the end. A *ParseError with
+	// fatal false is a bad row the reader may skip.
+	next() (Dig, error, bool)
+}
+
+// Reader streams digs from a dig log, one row at a time, in constant memory
+// apart from a hash of each dig id (8 bytes a row) for the duplicate check.
+type Reader struct {
+	name string
+	opts ReadOptions
+	src  rowSource
+
+	freqs       []int
+	displayCol  bool
+	groundCol   bool
+	ignored     []string
+	seen        map[uint64]int
+	rows        int
+	kept        int
+	displayGaps int
+
+	// Bad lists the rows skipped under SkipBad.
+	Bad []*ParseError
+	// Unlabelled counts the rows skipped under SkipUnlabelled.
+	Unlabelled int
+}
+
+// NewReader starts reading a dig log from r; name is used in errors.
+func NewReader(r io.Reader, name string, opts ReadOptions) (*Reader, error) {
+	br := bufio.NewReaderSize(r, 64<<10)
+	// A spreadsheet's UTF-8 byte-order mark is not part of the first cell.
+	if b, err := br.Peek(3); err == nil && bytes.Equal(b, []byte{0xEF, 0xBB, 0xBF}) {
+		br.Discard(3)
+	}
+	format := strings.ToLower(opts.Format)
+	if format == "" {
+		format = sniffFormat(name, br)
+	}
+	rd := &Reader{name: name, opts: opts, seen: map[uint64]int{}}
+	switch format {
+	case "jsonl", "json", "ndjson":
+		rd.src = newJSONLSource(br, rd)
+	case "csv":
+		src, err := newCSVSource(br, rd)
+		if err != nil {
+			return nil, err
+		}
+		rd.src = src
+	default:
+		return nil, fmt.Errorf("features: unknown log format %q (want csv or jsonl)", opts.Format)
+	}
+	return rd, nil
+}
+
+// sniffFormat decides by extension, then by the first non-blank byte.
+func sniffFormat(name string, br *bufio.Reader) string {
+	lower := strings.ToLower(name)
+	for _, ext := range []string{".jsonl", ".ndjson", ".json"} {
+		if strings.HasSuffix(lower, ext) {
+			return "jsonl"
+		}
+	}
+	if strings.HasSuffix(lower, ".csv") {
+		return "csv"
+	}
+	b, _ := br.Peek(512)
+	if t := bytes.TrimLeft(b, " \t\r\n"); len(t) > 0 && t[0] == '{' {
+		return "jsonl"
+	}
+	return "csv"
+}
+
+// Freqs is the log's frequency set, ascending; for JSON Lines it is known
+// after the first row.
+func (r *Reader) Freqs() []int { return r.freqs }
+
+// HasDisplayID reports whether the log has a display_id column and every row
+// kept so far has a value in it.
+func (r *Reader) HasDisplayID() bool { return r.displayCol && r.displayGaps == 0 }
+
+// Ignored lists the columns kept out of the model.
+func (r *Reader) Ignored() []string { return r.ignored }
+
+// Next returns the next usable dig, or io.EOF after the last. A log with no
+// rows at all gives ErrNoDigs instead of io.EOF.
+func (r *Reader) Next() (Dig, error) {
+	for {
+		d, err, fatal := r.src.next()
+		if err == io.EOF {
+			if r.rows == 0 {
+				return Dig{}, &ParseError{File: r.name, Err: fmt.Errorf("%w: the log has no rows", ErrNoDigs)}
+			}
+			return Dig{}, io.EOF
+		}
+		r.rows++
+		if err == nil {
+			err = r.check(&d)
+		}
+		if err != nil {
+			var pe *ParseError
+			if errors.As(err, &pe) && !fatal {
+				if errors.Is(err, ErrUnlabelled) && r.opts.SkipUnlabelled {
+					r.Unlabelled++
+					continue
+				}
+				if r.opts.SkipBad {
+					r.Bad = append(r.Bad, pe)
+					continue
+				}
+			}
+			return Dig{}, err
+		}
+		r.kept++
+		return d, nil
+	}
+}
+
+// check applies the rules that hold for every format.
+func (r *Reader) check(d *Dig) error {
+	if d.ID == "" {
+		d.ID = fmt.Sprint(r.rows)
+	}
+	h := fnv.New64a()
+	h.Write([]byte(d.ID))
+	key := h.Sum64()
+	if line, dup := r.seen[key]; dup {
+		return &ParseError{File: r.name, Line: d.Line, Column: "dig", Err: cause(ErrDuplicateDig, "%q was used on line %d", d.ID, line)}
+	}
+	if r.opts.Require != "" && !d.Labelled(r.opts.Require) {
+		return &ParseError{File: r.name, Line: d.Line, Column: labelColumn(d, r.opts.Require),
+			Err: fmt.Errorf("%w: training needs the %s of every dig (or --skip-unlabelled)", ErrUnlabelled, labelWords(r.opts.Require))}
+	}
+	r.seen[key] = d.Line
+	if r.opts.PhaseOffset != 0 {
+		for i := range d.Readings {
+			d.Readings[i] = d.Readings[i].Rotate(r.opts.PhaseOffset)
+		}
+		for i := range d.Ground {
+			d.Ground[i] = d.Ground[i].Rotate(r.opts.PhaseOffset)
+		}
+	}
+	if r.displayCol && math.IsNaN(d.DisplayID) {
+		r.displayGaps++
+	}
+	return nil
+}
+
+func labelColumn(d *Dig, kind Label) string {
+	if kind == LabelShape || (kind == LabelBoth && d.Material != "") {
+		return "shape"
+	}
+	return "material"
+}
+
+func labelWords(kind Label) string {
+	if kind == LabelBoth {
+		return "material and shape"
+	}
+	return string(kind)
+}
+
+// ReadLog reads a whole dig log into memory.
+func ReadLog(r io.Reader, name string, opts ReadOptions) (*Log, error) {
+	rd, err := NewReader(r, name, opts)
+	if err != nil {
+		return nil, err
+	}
+	log := &Log{Name: name}
+	for {
+		d, err := rd.Next()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return nil, err
+		}
+		log.Digs = append(log.Digs, d)
+	}
+	log.Freqs, log.Ignored, log.Bad = rd.freqs, rd.ignored, rd.Bad
+	log.HasDisplayID = rd.HasDisplayID()
+	for i := range log.Digs {
+		if log.Digs[i].Ground != nil {
+			log.HasGround = true
+			break
+		}
+	}
+	if len(log.Digs) == 0 {
+		why := "every row was bad or unlabelled"
+		return nil, &ParseError{File: name, Err: fmt.Errorf("%w: %s", ErrNoDigs, why)}
+	}
+	return log, nil
+}
+
+// Open opens a dig log by name; "-" is standard input. The caller closes it.
+func Open(name string) (io.ReadCloser, error) {
+	if name == "-" {
+		return io.NopCloser(os.Stdin), nil
+	}
+	f, err := os.Open(name)
+	if err != nil {
+		return nil, fmt.Errorf("features: %w", err)
+	}
+	return f, nil
+}
+
+// ReadFile reads a dig log from a file name, "-" for standard input.
+func ReadFile(name string, opts ReadOptions) (*Log, error) {
+	f, err := Open(name)
+	if err != nil {
+		return nil, err
+	}
+	defer f.Close()
+	return ReadLog(f, name, opts)
+}
+
+// readingFrom turns one frequency's two values into a Reading, checking them.
+// polar says the pair is (phase, amp); otherwise it is (x, r).
+func readingFrom(hz int, polar bool, a, b float64) (Reading, int, error) {
+	if polar {
+		if b <= 0 {
+			return Reading{}, 1, cause(ErrNotPositive, "got %g", b)
+		}
+		return FromPolar(hz, a, b), 0, nil
+	}
+	if a == 0 && b == 0 {
+		return Reading{}, 1, cause(ErrNotPositive, "x and r are both 0, so the amplitude is 0")
+	}
+	return Reading{Hz: hz, X: a, R: b}, 0, nil
+}
