@@ -86,7 +86,7 @@ func classifyColumn(name string) (columnKind, int, error) {
 
 // freqColumns are the column indices of one frequency's reading, -1 if absent.
 type freqColumns struct {
-	phase, amp, x, r                     int
+	phase, amp, x, r                         int
 	groundPhase, groundAmp, groundX, groundR int
 }
 
