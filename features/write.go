@@ -19,6 +19,9 @@ type WriteOptions struct {
 	AmpDigits     int
 	// Labels writes the material and shape columns.
 	Labels bool
+	// Notes, when not nil, adds a free-text "note" column, one per dig; a
+	// reader keeps it out of the model.
+	Notes []string
 }
 
 // WriteCSV writes digs as a dig log in the CSV form of the contract.
@@ -49,6 +52,12 @@ func WriteCSV(w io.Writer, freqs []int, digs []Dig, opts WriteOptions) error {
 			header = append(header, "ground_"+a+strconv.Itoa(hz), "ground_"+b+strconv.Itoa(hz))
 		}
 	}
+	if opts.Notes != nil {
+		if len(opts.Notes) != len(digs) {
+			panic("features: length mismatch")
+		}
+		header = append(header, "note")
+	}
 	if err := cw.Write(header); err != nil {
 		return err
 	}
@@ -72,6 +81,9 @@ func WriteCSV(w io.Writer, freqs []int, digs []Dig, opts WriteOptions) error {
 			} else {
 				rec = opts.appendReadings(rec, d.Ground)
 			}
+		}
+		if opts.Notes != nil {
+			rec = append(rec, opts.Notes[i])
 		}
 		if err := cw.Write(rec); err != nil {
 			return err

@@ -92,6 +92,8 @@ func newRootCommand(g *globalOptions) *cobra.Command {
 	root.SetFlagErrorFunc(func(_ *cobra.Command, err error) error { return usageError{err} })
 	root.AddCommand(
 		newFeaturesCommand(g),
+		newSimulateCommand(g),
+		newResponseCommand(g),
 	)
 	for _, c := range root.Commands() {
 		c.Args = wrapArgs(c.Args)

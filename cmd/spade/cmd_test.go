@@ -1,0 +1,88 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"math"
+	"strings"
+	"testing"
+
+	"gonum.org/v1/gonum/floats/scalar"
+)
+
+// spade runs one command line in-process.
+func spade(t *testing.T, stdin string, args ...string) (stdout, stderr string, code int) {
+	t.Helper()
+	var out, errb bytes.Buffer
+	code = run(context.Background(), args, strings.NewReader(stdin), &out, &errb)
+	return out.String(), errb.String(), code
+}
+
+func TestResponseJSONSphereDCLimit(t *testing.T) {
+	// A non-conducting permeable sphere: X = 2(μr-1)/(μr+2) at every
+	// frequency (Wait 1951): μr = 4 gives 1.
+	out, _, code := spade(t, "", "response", "--shape", "sphere", "--mur", "4", "--freqs", "1k,15k", "--format", "json")
+	if code != 0 {
+		t.Fatalf("exit %d", code)
+	}
+	var rows []responseRow
+	if err := json.Unmarshal([]byte(out), &rows); err != nil {
+		t.Fatal(err)
+	}
+	if len(rows) != 2 || rows[1].Hz != 15000 || !scalar.EqualWithinAbs(rows[0].X, 1, 1e-12) || math.Abs(rows[0].Phase) > 1e-9 {
+		t.Errorf("rows %+v", rows)
+	}
+}
+
+func TestResponseCopperCoin(t *testing.T) {
+	// "What would a 20 mm copper coin read?": a good conductor, phase above
+	// 160° at 5 kHz and rising (common practice, no source).
+	out, _, code := spade(t, "", "response", "--shape", "disc", "--material", "copper", "--diameter-mm", "20", "--format", "json")
+	var rows []responseRow
+	if code != 0 || json.Unmarshal([]byte(out), &rows) != nil {
+		t.Fatalf("exit %d: %s", code, out)
+	}
+	for i, r := range rows {
+		if r.Phase < 160 || (i > 0 && r.Phase <= rows[i-1].Phase) || r.R < 0 {
+			t.Errorf("row %+v", r)
+		}
+	}
+}
+
+func TestResponseUsageErrors(t *testing.T) {
+	for _, args := range [][]string{
+		{"response", "--shape", "cube", "--material", "gold"},
+		{"response", "--material", "unobtainium"},
+		{"response", "--shape", "sphere"},
+		{"response", "--freqs", "abc", "--material", "gold"},
+	} {
+		_, stderr, code := spade(t, "", args...)
+		if code != exitUsage || !strings.HasPrefix(stderr, "spade: ") || strings.Contains(stderr, "goroutine") {
+			t.Errorf("%v: exit %d, stderr %q", args, code, stderr)
+		}
+	}
+}
+
+func TestSimulateIsDeterministicAndReadable(t *testing.T) {
+	a, _, code := spade(t, "", "simulate", "--n", "50", "--seed", "9", "--freqs", "4k,12k,36k")
+	b, _, _ := spade(t, "", "simulate", "--n", "50", "--seed", "9", "--freqs", "4k,12k,36k")
+	if code != 0 || a != b {
+		t.Fatalf("exit %d, same output %v", code, a == b)
+	}
+	out, stderr, code := spade(t, a, "features", "-")
+	if code != 0 {
+		t.Fatalf("features: exit %d, %s", code, stderr)
+	}
+	lines := strings.Split(strings.TrimSpace(out), "\n")
+	if len(lines) != 51 || !strings.HasPrefix(lines[0], "dig,material,shape,phase_4000,phase_12000,phase_36000,logamp_12000") {
+		t.Errorf("%d lines, header %q", len(lines), lines[0])
+	}
+}
+
+func TestBadLogExitsOneWithPosition(t *testing.T) {
+	_, stderr, code := spade(t, "", "features", "../../testdata/logs/bad/amp-negative.csv")
+	if code != exitError || stderr != "spade: ../../testdata/logs/bad/amp-negative.csv:2: amp_5000: must be > 0, got -0.3\n" {
+		t.Errorf("exit %d, stderr %q", code, stderr)
+	}
+}

@@ -1,0 +1,137 @@
+package datasets
+
+import (
+	"bytes"
+	_ "embed"
+	"fmt"
+	"io"
+	"math"
+	"math/rand/v2"
+
+	"github.com/spade-detect/spade/features"
+)
+
+// The embedded demo: an invented history of DemoN labelled digs and a file of
+// unlabelled readings to classify, both made by Simulate and regenerated
+// byte for byte by the tests (go test ./datasets -update rewrites them).
+var (
+	//go:embed demo/history.csv
+	DemoHistory []byte
+	//go:embed demo/readings.csv
+	DemoReadings []byte
+)
+
+// Demo parameters.
+const (
+	DemoN            = 1500
+	DemoSeed         = 7
+	DemoReadingsSeed = 8
+	DemoHistoryName  = "demo/history.csv"
+	DemoReadingsName = "demo/readings.csv"
+)
+
+// instrumentWrite rounds as the demo instrument displays: phase to 0.01°,
+// amplitude to 4 significant digits.
+var instrumentWrite = features.WriteOptions{PhaseDecimals: 2, AmpDigits: 4, Labels: true}
+
+// WriteLog simulates and writes a dig log in the CSV form of the contract.
+func WriteLog(w io.Writer, opts Options) error {
+	digs, _, err := Simulate(opts)
+	if err != nil {
+		return err
+	}
+	freqs := opts.Freqs
+	if len(freqs) == 0 {
+		freqs = DefaultFreqs
+	}
+	fmt.Fprintf(w, "# simulated by spade (scenario %s, seed %d): invented sites and finds\n", scenarioName(opts), opts.Seed)
+	return features.WriteCSV(w, sortedFreqs(freqs), digs, instrumentWrite)
+}
+
+func scenarioName(o Options) string {
+	if o.Scenario == "" {
+		return "demo"
+	}
+	return o.Scenario
+}
+
+func sortedFreqs(f []int) []int {
+	_, freqs, _, _ := Options{Freqs: f}.resolve()
+	return freqs
+}
+
+// GenerateDemoHistory makes the embedded history's bytes.
+func GenerateDemoHistory() ([]byte, error) {
+	var buf bytes.Buffer
+	err := WriteLog(&buf, Options{Scenario: "demo", N: DemoN, Seed: DemoSeed})
+	return buf.Bytes(), err
+}
+
+// demoReading is one of the example readings: what it really is, where.
+type demoReading struct {
+	class   string // a catalogue class, or "" for the extra object below
+	site    string
+	depthCM float64
+	note    string
+}
+
+var demoReadings = []demoReading{
+	{"gold/ring", "Sandle Reach", 9, "simulated: gold ring"},
+	{"aluminium/ring-pull", "Sandle Reach", 7, "simulated: aluminium ring-pull"},
+	{"copper/coin", "Harrowmere Farm", 14, "simulated: copper coin"},
+	{"iron/nail", "Harrowmere Farm", 6, "simulated: iron nail"},
+	{"steel/ordnance", "Harrowmere Farm", 30, "simulated: steel projectile with copper band (possible ordnance)"},
+	{"aluminium/foil", "Sandle Reach", 4, "simulated: aluminium foil"},
+	{"lead/shot", "Harrowmere Farm", 16, "simulated: lead shot"},
+	{"silver/coin", "Harrowmere Farm", 12, "simulated: silver coin"},
+	{"bronze/coin", "Harrowmere Farm", 18, "simulated: bronze coin"},
+	{"steel/cap", "Sandle Reach", 5, "simulated: steel crown cap"},
+	{"silver/ring", "Sandle Reach", 10, "simulated: silver ring"},
+	{"", "Harrowmere Farm", 8, "simulated: magnetic stone, unlike anything in the history"},
+}
+
+// magneticStone is a non-conducting, weakly permeable stone: a response the
+// history has never seen, for the novelty flag.
+func magneticStone(rng *rand.Rand) Response {
+	return sphere(mm(uniform(rng, [2]float64{30, 40})), 0, uniform(rng, [2]float64{1.3, 1.6}))
+}
+
+// GenerateDemoReadings makes the embedded readings' bytes: unlabelled rows,
+// with a note column (kept out of the model) saying what each really was.
+func GenerateDemoReadings() ([]byte, error) {
+	rng := rand.New(rand.NewPCG(DemoReadingsSeed, 0x5eed_d16))
+	freqs := DefaultFreqs
+	var digs []features.Dig
+	var notes []string
+	for i, r := range demoReadings {
+		site := SiteNamed(r.site)
+		var d features.Dig
+		for attempt := 0; ; attempt++ {
+			var resp Response
+			if r.class == "" {
+				resp = magneticStone(rng)
+			} else {
+				resp = KindOf(r.class).draw(rng)
+			}
+			var ok bool
+			if d, ok = DefaultMeasurement.read(rng, freqs, site, resp, r.depthCM); ok {
+				break
+			}
+			if attempt > 1000 {
+				return nil, fmt.Errorf("datasets: demo reading %d is never heard", i+1)
+			}
+		}
+		d.ID = fmt.Sprintf("R%02d", i+1)
+		d.Site = r.site
+		d.Date = "2026-11-14"
+		d.DepthCM = math.NaN()
+		digs = append(digs, d)
+		notes = append(notes, r.note)
+	}
+	var buf bytes.Buffer
+	buf.WriteString("# example readings to classify, simulated by spade: invented finds; the note column is kept out of the model\n")
+	opts := instrumentWrite
+	opts.Notes = notes
+	err := features.WriteCSV(&buf, freqs, digs, opts)
+	return buf.Bytes(), err
+}
