@@ -176,9 +176,11 @@ func (s *FeatureSpec) Extract(d *Dig, dst []float64) ([]float64, PoleFit, error)
 	}
 	var fit PoleFit
 	if n > 1 {
-		ref := math.Log(rs[0].Amp())
+		// A floor keeps the logarithm finite when ground cancellation leaves
+		// no amplitude at all.
+		ref := math.Log(math.Max(rs[0].Amp(), 1e-300))
 		for _, r := range rs[1:] {
-			dst[k] = math.Log(r.Amp()) - ref
+			dst[k] = math.Log(math.Max(r.Amp(), 1e-300)) - ref
 			k++
 		}
 		dst[k] = PhaseSlope(rs)

@@ -1,0 +1,370 @@
+package train
+
+import (
+	"bytes"
+	"crypto/sha256"
+	"encoding/binary"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"slices"
+
+	"github.com/spade-detect/spade/features"
+)
+
+// The model file:
+//
+//	magic "SPADEMDL" | version uint16 | reserved uint16 | payload length uint64
+//	payload: metadata length uint32 | metadata (JSON) | forest (binary)
+//	SHA-256 of everything before it
+//
+// all integers little-endian. The forest is stored by us, not with golearn's
+// forest Save/Load, whose load time is quadratic in the number of trees and
+// which trusts the ForestSize it reads. Each tree is its nodes in preorder:
+// a split is 0, the feature (uvarint) and the threshold (float64 bits); a
+// leaf is 1 and its non-zero class counts as (class, count) uvarint pairs.
+// Inner nodes' class counts are the sums of their children's, so golearn's
+// ClassDist at every node is rebuilt on load.
+const (
+	magic         = "SPADEMDL"
+	FormatVersion = 1
+	headerLen     = 8 + 2 + 2 + 8
+	maxModelBytes = 2 << 30
+	maxTreeDepth  = 4096
+)
+
+// Errors of Load; test with errors.Is.
+var (
+	ErrNotModel = errors.New("not a spade model file")
+	ErrVersion  = errors.New("model format version not supported")
+	ErrCorrupt  = errors.New("model file is corrupt")
+)
+
+// Summary is what a model was trained on and how well it did.
+type Summary struct {
+	SpadeVersion string             `json:"spade_version"`
+	Created      string             `json:"created"` // YYYY-MM-DD
+	Seed         uint64             `json:"seed"`
+	Trees        int                `json:"trees"`
+	Mtry         int                `json:"mtry"`
+	Digs         int                `json:"digs"`
+	ClassCounts  map[string]int     `json:"class_counts"`
+	OutOfBag     Metrics            `json:"out_of_bag"`
+	Importance   map[string]float64 `json:"importance"`
+	Skipped      int                `json:"skipped_rows"`
+}
+
+// Training holds the training digs' feature vectors for nearest-neighbour
+// explanations: dig id, class, date and vector, and no site or coordinates.
+type Training struct {
+	IDs     []string    `json:"ids"`
+	Dates   []string    `json:"dates"`
+	Y       []int32     `json:"y"`
+	Vectors [][]float64 `json:"vectors"`
+	// OutOfBag are the digs' out-of-bag class probabilities (NaN-free:
+	// a dig no tree left out gets its in-bag prediction).
+	OutOfBag [][]float64 `json:"out_of_bag"`
+}
+
+// Bundle is everything a model file holds.
+type Bundle struct {
+	Spec     *features.FeatureSpec `json:"spec"`
+	Label    features.Label        `json:"label"`
+	Classes  []string              `json:"classes"`
+	Summary  Summary               `json:"summary"`
+	Baseline *Baseline             `json:"baseline"`
+	Training Training              `json:"training"`
+	Forest   *Forest               `json:"-"`
+}
+
+// metadata is the JSON part, with the format version repeated for readers
+// who only look at that.
+type metadata struct {
+	Format int `json:"format"`
+	*Bundle
+}
+
+// Marshal encodes the bundle. The same bundle gives the same bytes.
+func (b *Bundle) Marshal() ([]byte, error) {
+	meta, err := json.Marshal(metadata{Format: FormatVersion, Bundle: b})
+	if err != nil {
+		return nil, fmt.Errorf("train: encoding model: %w", err)
+	}
+	var payload bytes.Buffer
+	binary.Write(&payload, binary.LittleEndian, uint32(len(meta)))
+	payload.Write(meta)
+	encodeForest(&payload, b.Forest)
+	var out bytes.Buffer
+	out.WriteString(magic)
+	binary.Write(&out, binary.LittleEndian, uint16(FormatVersion))
+	binary.Write(&out, binary.LittleEndian, uint16(0))
+	binary.Write(&out, binary.LittleEndian, uint64(payload.Len()))
+	out.Write(payload.Bytes())
+	sum := sha256.Sum256(out.Bytes())
+	out.Write(sum[:])
+	return out.Bytes(), nil
+}
+
+// Save writes the bundle atomically: a temporary file in the same folder,
+// then a rename, so an interrupted save never destroys the previous model.
+func (b *Bundle) Save(path string) error {
+	data, err := b.Marshal()
+	if err != nil {
+		return err
+	}
+	return features.WriteFileAtomic(path, func(w io.Writer) error {
+		_, err := w.Write(data)
+		return err
+	})
+}
+
+// Load reads and checks a model file.
+func Load(path string) (*Bundle, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("train: %w", err)
+	}
+	defer f.Close()
+	data, err := io.ReadAll(io.LimitReader(f, maxModelBytes+1))
+	if err != nil {
+		return nil, fmt.Errorf("train: reading %s: %w", path, err)
+	}
+	b, err := Unmarshal(data)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", path, err)
+	}
+	return b, nil
+}
+
+// Unmarshal decodes and checks a model file's bytes. Any malformed input is
+// an error wrapping ErrNotModel, ErrVersion or ErrCorrupt, never a panic.
+func Unmarshal(data []byte) (b *Bundle, err error) {
+	defer func() {
+		if r := recover(); r != nil {
+			b, err = nil, fmt.Errorf("%w: %v", ErrCorrupt, r)
+		}
+	}()
+	if len(data) < len(magic) || string(data[:len(magic)]) != magic {
+		return nil, ErrNotModel
+	}
+	if len(data) < headerLen+sha256.Size {
+		return nil, fmt.Errorf("%w: truncated (%d bytes)", ErrCorrupt, len(data))
+	}
+	version := binary.LittleEndian.Uint16(data[8:])
+	if version != FormatVersion {
+		return nil, fmt.Errorf("%w: the file has format %d, this spade reads format %d", ErrVersion, version, FormatVersion)
+	}
+	plen := binary.LittleEndian.Uint64(data[12:])
+	if plen != uint64(len(data)-headerLen-sha256.Size) {
+		return nil, fmt.Errorf("%w: truncated or padded (payload %d bytes, file has room for %d)", ErrCorrupt, plen, len(data)-headerLen-sha256.Size)
+	}
+	body := data[:len(data)-sha256.Size]
+	if sum := sha256.Sum256(body); !bytes.Equal(sum[:], data[len(body):]) {
+		return nil, fmt.Errorf("%w: checksum mismatch", ErrCorrupt)
+	}
+	payload := body[headerLen:]
+	if len(payload) < 4 {
+		return nil, fmt.Errorf("%w: no metadata", ErrCorrupt)
+	}
+	mlen := binary.LittleEndian.Uint32(payload)
+	if uint64(mlen) > uint64(len(payload)-4) {
+		return nil, fmt.Errorf("%w: metadata length %d past the end", ErrCorrupt, mlen)
+	}
+	b = &Bundle{}
+	meta := metadata{Bundle: b}
+	dec := json.NewDecoder(bytes.NewReader(payload[4 : 4+mlen]))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&meta); err != nil {
+		return nil, fmt.Errorf("%w: metadata: %v", ErrCorrupt, err)
+	}
+	if err := b.validate(); err != nil {
+		return nil, fmt.Errorf("%w: %v", ErrCorrupt, err)
+	}
+	forest, err := decodeForest(payload[4+mlen:], b.Spec.Len(), len(b.Classes))
+	if err != nil {
+		return nil, fmt.Errorf("%w: forest: %v", ErrCorrupt, err)
+	}
+	forest.Names, forest.Classes, forest.Mtry = b.Spec.Names, b.Classes, b.Summary.Mtry
+	forest.Importance = make([]float64, len(b.Spec.Names))
+	for i, n := range b.Spec.Names {
+		forest.Importance[i] = b.Summary.Importance[n]
+	}
+	forest.compile()
+	b.Forest = forest
+	return b, nil
+}
+
+func (b *Bundle) validate() error {
+	if b.Spec == nil {
+		return errors.New("no feature spec")
+	}
+	if err := b.Spec.Validate(); err != nil {
+		return err
+	}
+	if _, ok := features.ParseLabel(string(b.Label)); !ok {
+		return fmt.Errorf("unknown label %q", b.Label)
+	}
+	if len(b.Classes) == 0 || !slices.IsSorted(b.Classes) || len(slices.Compact(slices.Clone(b.Classes))) != len(b.Classes) {
+		return errors.New("class list empty or not sorted and distinct")
+	}
+	t := &b.Training
+	n, p, K := len(t.Y), b.Spec.Len(), len(b.Classes)
+	if len(t.IDs) != n || len(t.Dates) != n || len(t.Vectors) != n || len(t.OutOfBag) != n {
+		return errors.New("training arrays differ in length")
+	}
+	for i := range n {
+		if t.Y[i] < 0 || int(t.Y[i]) >= K || len(t.Vectors[i]) != p || len(t.OutOfBag[i]) != K {
+			return fmt.Errorf("training row %d malformed", i)
+		}
+	}
+	if b.Baseline != nil {
+		if len(b.Baseline.Shares) != len(b.Baseline.Cuts)+1 {
+			return errors.New("baseline bins malformed")
+		}
+		for _, s := range b.Baseline.Shares {
+			if len(s) != K {
+				return errors.New("baseline shares malformed")
+			}
+		}
+	}
+	return nil
+}
+
+func encodeForest(w *bytes.Buffer, f *Forest) {
+	var buf [binary.MaxVarintLen64]byte
+	uv := func(v uint64) { w.Write(buf[:binary.PutUvarint(buf[:], v)]) }
+	uv(uint64(len(f.Trees)))
+	for _, t := range f.Trees {
+		uv(uint64(t.Nodes()))
+		var walk func(i int32)
+		walk = func(i int32) {
+			if t.Feature[i] < 0 {
+				w.WriteByte(1)
+				l := t.Left[i]
+				uv(uint64(t.LeafStart[l+1] - t.LeafStart[l]))
+				for j := t.LeafStart[l]; j < t.LeafStart[l+1]; j++ {
+					uv(uint64(t.LeafClass[j]))
+					uv(uint64(t.LeafCount[j]))
+				}
+				return
+			}
+			w.WriteByte(0)
+			uv(uint64(t.Feature[i]))
+			binary.Write(w, binary.LittleEndian, math.Float64bits(t.Threshold[i]))
+			walk(t.Left[i])
+			walk(t.Left[i] + 1)
+		}
+		walk(0)
+	}
+}
+
+// forestReader decodes with every count and index checked against what the
+// file can hold, so a hostile file cannot make it allocate or loop without
+// bound.
+type forestReader struct {
+	r   *bytes.Reader
+	err error
+}
+
+func (fr *forestReader) uvarint(limit uint64, what string) uint64 {
+	if fr.err != nil {
+		return 0
+	}
+	v, err := binary.ReadUvarint(fr.r)
+	if err != nil {
+		fr.err = fmt.Errorf("%s: %v", what, err)
+		return 0
+	}
+	if v > limit {
+		fr.err = fmt.Errorf("%s %d out of range (max %d)", what, v, limit)
+		return 0
+	}
+	return v
+}
+
+func decodeForest(data []byte, features, classes int) (*Forest, error) {
+	fr := &forestReader{r: bytes.NewReader(data)}
+	// A node takes at least two bytes, which bounds every count.
+	limit := uint64(len(data))
+	nTrees := fr.uvarint(limit, "tree count")
+	if fr.err == nil && nTrees == 0 {
+		return nil, errors.New("no trees")
+	}
+	f := &Forest{}
+	for range nTrees {
+		nodes := fr.uvarint(limit/2, "node count")
+		if fr.err != nil {
+			return nil, fr.err
+		}
+		t := &Tree{LeafStart: []int32{0}}
+		var read func(node int32, depth int)
+		read = func(node int32, depth int) {
+			if fr.err != nil {
+				return
+			}
+			if depth > maxTreeDepth || uint64(len(t.Feature)) > nodes {
+				fr.err = errors.New("tree deeper or larger than it says")
+				return
+			}
+			kind, err := fr.r.ReadByte()
+			if err != nil {
+				fr.err = err
+				return
+			}
+			switch kind {
+			case 1:
+				m := fr.uvarint(uint64(classes), "leaf class count")
+				leaf := int32(len(t.LeafStart) - 1)
+				for range m {
+					t.LeafClass = append(t.LeafClass, int32(fr.uvarint(uint64(classes-1), "class")))
+					t.LeafCount = append(t.LeafCount, int32(fr.uvarint(math.MaxInt32, "count")))
+				}
+				t.LeafStart = append(t.LeafStart, int32(len(t.LeafClass)))
+				t.Feature[node], t.Left[node] = -1, leaf
+			case 0:
+				feat := fr.uvarint(uint64(features-1), "feature")
+				var bits uint64
+				if err := binary.Read(fr.r, binary.LittleEndian, &bits); err != nil {
+					fr.err = err
+					return
+				}
+				left := int32(len(t.Feature))
+				t.Feature[node], t.Threshold[node], t.Left[node] = int32(feat), math.Float64frombits(bits), left
+				t.Feature = append(t.Feature, 0, 0)
+				t.Threshold = append(t.Threshold, 0, 0)
+				t.Left = append(t.Left, 0, 0)
+				read(left, depth+1)
+				read(left+1, depth+1)
+			default:
+				fr.err = fmt.Errorf("unknown node kind %d", kind)
+			}
+		}
+		t.Feature, t.Threshold, t.Left = []int32{0}, []float64{0}, []int32{0}
+		read(0, 0)
+		if fr.err != nil {
+			return nil, fr.err
+		}
+		if uint64(t.Nodes()) != nodes {
+			return nil, fmt.Errorf("tree has %d nodes, header says %d", t.Nodes(), nodes)
+		}
+		for l := range len(t.LeafStart) - 1 {
+			var tot int64
+			for j := t.LeafStart[l]; j < t.LeafStart[l+1]; j++ {
+				tot += int64(t.LeafCount[j])
+			}
+			if tot == 0 {
+				return nil, errors.New("empty leaf")
+			}
+		}
+		f.Trees = append(f.Trees, t)
+	}
+	if fr.r.Len() != 0 {
+		return nil, fmt.Errorf("%d bytes after the last tree", fr.r.Len())
+	}
+	return f, nil
+}
+
+func sha256Sum(b []byte) [32]byte { return sha256.Sum256(b) }

@@ -1,0 +1,148 @@
+package train
+
+import (
+	"context"
+	"fmt"
+	"math/rand/v2"
+	"slices"
+)
+
+// StratifiedFolds assigns each row a fold in [0, k) so that every class is
+// spread over the folds as evenly as it can be (golearn's own cross-fold
+// split is not stratified). Rows of a class are shuffled by the seed and
+// dealt out in turn, each class starting where the last left off, so that
+// fold sizes differ by at most one.
+func StratifiedFolds(y []int32, classes, k int, seed uint64) []int {
+	rng := rand.New(rand.NewPCG(seed, 0xf01d))
+	fold := make([]int, len(y))
+	next := 0
+	for c := range classes {
+		var rows []int
+		for i, v := range y {
+			if int(v) == c {
+				rows = append(rows, i)
+			}
+		}
+		rng.Shuffle(len(rows), func(i, j int) { rows[i], rows[j] = rows[j], rows[i] })
+		for _, r := range rows {
+			fold[r] = next
+			next = (next + 1) % k
+		}
+	}
+	return fold
+}
+
+// EvalOptions for CrossValidate.
+type EvalOptions struct {
+	Folds   int // default 5
+	Seed    uint64
+	Forest  Options
+	Keepers []string // classes worth digging, for the dig-saving curve
+	Hazards []string // classes never to be dug
+	// Progress, when set, is called with trees grown so far and in all.
+	Progress func(done, total int)
+}
+
+// Evaluation is the cross-validated report. Its JSON is the evaluate
+// command's contract.
+type Evaluation struct {
+	Model        Metrics    `json:"model"`
+	Baseline     Metrics    `json:"baseline"`
+	BaselineAxis string     `json:"baseline_axis"`
+	DigSaving    *DigSaving `json:"dig_saving,omitempty"`
+	Folds        int        `json:"folds"`
+	Seed         uint64     `json:"seed"`
+	Digs         int        `json:"digs"`
+	Classes      []string   `json:"classes"`
+	// The pooled held-out probabilities, per row, for further analysis.
+	Probs         [][]float64 `json:"-"`
+	BaselineProbs [][]float64 `json:"-"`
+}
+
+// CrossValidate runs stratified k-fold cross-validation of the forest and of
+// the single-number baseline on the same folds.
+func CrossValidate(ctx context.Context, ds *Dataset, o EvalOptions) (*Evaluation, error) {
+	if o.Folds == 0 {
+		o.Folds = 5
+	}
+	n := ds.Rows()
+	if o.Folds < 2 || o.Folds > n {
+		return nil, fmt.Errorf("train: %d folds for %d digs: need 2 <= folds <= digs", o.Folds, n)
+	}
+	fo := o.Forest.withDefaults(len(ds.Names))
+	K := len(ds.Classes)
+	fold := StratifiedFolds(ds.Y, K, o.Folds, o.Seed)
+	axis := BaselineAxis(ds.Names)
+	ev := &Evaluation{Folds: o.Folds, Seed: o.Seed, Digs: n, Classes: ds.Classes, BaselineAxis: ds.Names[axis],
+		Probs: make([][]float64, n), BaselineProbs: make([][]float64, n)}
+	total := fo.Trees * o.Folds
+	for k := range o.Folds {
+		var trainIdx, testIdx []int
+		for i, f := range fold {
+			if f == k {
+				testIdx = append(testIdx, i)
+			} else {
+				trainIdx = append(trainIdx, i)
+			}
+		}
+		trainDS, testDS := ds.Subset(trainIdx), ds.Subset(testIdx)
+		fopts := fo
+		fopts.Seed = o.Seed + uint64(k+1)*0x9e3779b97f4a7c15
+		if o.Progress != nil {
+			base := k * fo.Trees
+			fopts.Progress = func(done int) { o.Progress(base+done, total) }
+		}
+		forest, _, err := Grow(ctx, trainDS, fopts)
+		if err != nil {
+			return nil, err
+		}
+		probs := forest.PredictDataset(testDS)
+		bl := FitBaseline(ds.Names[axis], trainDS.Cols[axis], trainDS.Y, K)
+		for j, i := range testIdx {
+			ev.Probs[i] = probs[j]
+			ev.BaselineProbs[i] = slices.Clone(bl.Predict(ds.Cols[axis][i]))
+		}
+	}
+	ev.Model = Score(ds.Classes, ds.Y, ev.Probs)
+	ev.Baseline = Score(ds.Classes, ds.Y, ev.BaselineProbs)
+	if len(o.Keepers) > 0 {
+		ev.DigSaving = digSaving(ds, o.Keepers, o.Hazards, ev.Probs, ev.BaselineProbs)
+	}
+	return ev, nil
+}
+
+// digSaving builds the model's and the baseline's curves on the same rows.
+func digSaving(ds *Dataset, keepers, hazards []string, model, base [][]float64) *DigSaving {
+	K := len(ds.Classes)
+	isKeeper, isHazard := make([]bool, K), make([]bool, K)
+	for k, c := range ds.Classes {
+		isKeeper[k] = slices.Contains(keepers, c)
+		isHazard[k] = slices.Contains(hazards, c)
+	}
+	n := ds.Rows()
+	keeperRow, trashRow := make([]bool, n), make([]bool, n)
+	ms, bs := make([]float64, n), make([]float64, n)
+	d := &DigSaving{}
+	for k, c := range ds.Classes {
+		if isKeeper[k] {
+			d.Keepers = append(d.Keepers, c)
+		}
+		if isHazard[k] {
+			d.Hazards = append(d.Hazards, c)
+		}
+	}
+	for i, y := range ds.Y {
+		keeperRow[i] = isKeeper[y]
+		trashRow[i] = !isKeeper[y] && !isHazard[y]
+		if keeperRow[i] {
+			d.KeeperDigs++
+		} else if trashRow[i] {
+			d.TrashDigs++
+		}
+		ms[i] = KeeperScore(model[i], isKeeper)
+		bs[i] = KeeperScore(base[i], isKeeper)
+	}
+	d.Model = SavingCurve(ms, keeperRow, trashRow, SavingLevels)
+	d.Baseline = SavingCurve(bs, keeperRow, trashRow, SavingLevels)
+	return d
+}

@@ -1,0 +1,73 @@
+package train
+
+import (
+	"context"
+	"math"
+	"time"
+
+	"github.com/spade-detect/spade/features"
+)
+
+// TrainOptions for TrainBundle.
+type TrainOptions struct {
+	Label   features.Label
+	Forest  Options
+	Now     time.Time // the model's date; the same date and seed give the same bytes
+	Version string    // spade's version, recorded in the model
+	Skipped int       // rows the reader skipped, recorded in the summary
+}
+
+// TrainBundle grows a forest on a labelled log and assembles the model
+// bundle: spec, classes, summary with out-of-bag figures, the single-number
+// baseline fitted on all digs, and the training digs' vectors (no sites).
+func TrainBundle(ctx context.Context, log *features.Log, spec *features.FeatureSpec, o TrainOptions) (*Bundle, error) {
+	if o.Label == "" {
+		o.Label = features.LabelBoth
+	}
+	ds, err := FromLog(log, spec, o.Label)
+	if err != nil {
+		return nil, err
+	}
+	return TrainDataset(ctx, ds, spec, o)
+}
+
+// TrainDataset is TrainBundle on an extracted table.
+func TrainDataset(ctx context.Context, ds *Dataset, spec *features.FeatureSpec, o TrainOptions) (*Bundle, error) {
+	fo := o.Forest.withDefaults(len(ds.Names))
+	forest, oob, err := Grow(ctx, ds, fo)
+	if err != nil {
+		return nil, err
+	}
+	K := len(ds.Classes)
+	summary := Summary{
+		SpadeVersion: o.Version, Created: o.Now.UTC().Format(time.DateOnly), Seed: fo.Seed,
+		Trees: fo.Trees, Mtry: forest.Mtry, Digs: ds.Rows(), ClassCounts: map[string]int{},
+		OutOfBag: Score(ds.Classes, ds.Y, oob), Importance: map[string]float64{}, Skipped: o.Skipped,
+	}
+	for k, c := range ds.ClassCounts() {
+		summary.ClassCounts[ds.Classes[k]] = c
+	}
+	for i, n := range ds.Names {
+		summary.Importance[n] = forest.Importance[i]
+	}
+	tr := Training{IDs: ds.IDs, Dates: ds.Dates, Y: ds.Y, Vectors: make([][]float64, ds.Rows()), OutOfBag: oob}
+	if tr.IDs == nil {
+		tr.IDs, tr.Dates = make([]string, ds.Rows()), make([]string, ds.Rows())
+	}
+	x := make([]float64, len(ds.Names))
+	for i := range ds.Rows() {
+		tr.Vectors[i] = ds.Row(i, nil)
+		if math.IsNaN(oob[i][0]) {
+			// Every tree saw this dig (rare beyond a few trees): its in-bag
+			// prediction stands in, so the stored figures stay finite.
+			x = ds.Row(i, x)
+			tr.OutOfBag[i] = forest.Predict(x, nil)
+		}
+	}
+	axis := BaselineAxis(ds.Names)
+	return &Bundle{
+		Spec: spec, Label: o.Label, Classes: ds.Classes, Summary: summary,
+		Baseline: FitBaseline(ds.Names[axis], ds.Cols[axis], ds.Y, K),
+		Training: tr, Forest: forest,
+	}, nil
+}
