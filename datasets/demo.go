@@ -19,6 +19,10 @@ var (
 	DemoHistory []byte
 	//go:embed demo/readings.csv
 	DemoReadings []byte
+	// DemoValues is the demo's values file (invented worths), also the
+	// documented example of the format.
+	//go:embed demo/values.toml
+	DemoValues []byte
 )
 
 // Demo parameters.

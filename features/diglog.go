@@ -90,6 +90,7 @@ type Log struct {
 	HasGround    bool     // at least one dig carries a ground reading
 	Ignored      []string // columns kept out of the model
 	Bad          []*ParseError
+	Unlabelled   int // rows skipped under ReadOptions.SkipUnlabelled
 }
 
 // hasValue reports whether v holds a value (not the NaN that marks "absent").

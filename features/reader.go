@@ -210,7 +210,7 @@ func ReadLog(r io.Reader, name string, opts ReadOptions) (*Log, error) {
 		}
 		log.Digs = append(log.Digs, d)
 	}
-	log.Freqs, log.Ignored, log.Bad = rd.freqs, rd.ignored, rd.Bad
+	log.Freqs, log.Ignored, log.Bad, log.Unlabelled = rd.freqs, rd.ignored, rd.Bad, rd.Unlabelled
 	log.HasDisplayID = rd.HasDisplayID()
 	for i := range log.Digs {
 		if log.Digs[i].Ground != nil {
@@ -219,8 +219,7 @@ func ReadLog(r io.Reader, name string, opts ReadOptions) (*Log, error) {
 		}
 	}
 	if len(log.Digs) == 0 {
-		why := "every row was bad or unlabelled"
-		return nil, &ParseError{File: name, Err: fmt.Errorf("%w: %s", ErrNoDigs, why)}
+		return nil, &ParseError{File: name, Err: fmt.Errorf("%w: %d bad and %d unlabelled rows, none left", ErrNoDigs, len(rd.Bad), rd.Unlabelled)}
 	}
 	return log, nil
 }

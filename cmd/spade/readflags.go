@@ -25,17 +25,19 @@ func (o *logOptions) readOptions() features.ReadOptions {
 // readLog reads a whole log (a file name, or - for standard input) and
 // reports what it skipped or ignored.
 func (g *globalOptions) readLog(name string, opts features.ReadOptions) (*features.Log, error) {
-	var log *features.Log
-	var err error
-	if name == "-" {
-		log, err = features.ReadLog(g.stdin, "-", opts)
-	} else {
-		log, err = features.ReadFile(name, opts)
+	f, err := openLog(g, name)
+	if err != nil {
+		return nil, err
 	}
+	defer f.Close()
+	log, err := features.ReadLog(f, name, opts)
 	if err != nil {
 		return nil, err
 	}
 	g.reportRead(log.Bad, log.Ignored)
+	if log.Unlabelled > 0 {
+		g.note("skipped %d unlabelled row(s)", log.Unlabelled)
+	}
 	return log, nil
 }
 

@@ -94,6 +94,9 @@ func newRootCommand(g *globalOptions) *cobra.Command {
 		newFeaturesCommand(g),
 		newSimulateCommand(g),
 		newResponseCommand(g),
+		newTrainCommand(g),
+		newEvaluateCommand(g),
+		newInspectCommand(g),
 	)
 	for _, c := range root.Commands() {
 		c.Args = wrapArgs(c.Args)

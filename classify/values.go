@@ -1,0 +1,144 @@
+package classify
+
+import (
+	"errors"
+	"fmt"
+	"os"
+	"slices"
+	"strings"
+
+	"github.com/BurntSushi/toml"
+	"github.com/spade-detect/spade/features"
+)
+
+// Values is the user's own worth of finds, from a TOML values file:
+//
+//	cost_per_dig = 1.0          # the effort of one dig, in your unit
+//	hazard_threshold = 0.01     # caution at this probability of a hazard
+//	hazards = ["ordnance"]      # classes, materials or shapes never to dig
+//	keep = ["lead/shot"]        # optional: keepers beyond those worth > cost
+//	[value]                     # by "material/shape", by material or by shape
+//	"gold/ring" = 300
+//	silver = 40
+//	coin = 15
+//
+// A class's value is its own entry, else its material's, else its shape's,
+// else 0. A keeper, for the dig-saving figures, is a class worth more than a
+// dig costs, or one listed in keep.
+type Values struct {
+	CostPerDig      float64            `toml:"cost_per_dig"`
+	HazardThreshold float64            `toml:"hazard_threshold"`
+	Hazards         []string           `toml:"hazards"`
+	Keep            []string           `toml:"keep"`
+	Value           map[string]float64 `toml:"value"`
+}
+
+// DefaultHazardThreshold is the caution threshold when none is given.
+const DefaultHazardThreshold = 0.01
+
+// DefaultValues holds no values, a cost of 1 and the default hazard rule.
+func DefaultValues() *Values {
+	return &Values{CostPerDig: 1, HazardThreshold: DefaultHazardThreshold, Hazards: []string{"ordnance"}, Value: map[string]float64{}}
+}
+
+// ErrValues is the cause of every values-file error.
+var ErrValues = errors.New("bad values file")
+
+// LoadValues reads a values file. Errors name the file and, for syntax, the
+// line and column; an unknown key is an error, not silently ignored.
+func LoadValues(path string) (*Values, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, fmt.Errorf("classify: %w", err)
+	}
+	return ParseValues(path, string(data))
+}
+
+// ParseValues reads a values file's text; name is used in errors.
+func ParseValues(name, text string) (*Values, error) {
+	v := DefaultValues()
+	v.CostPerDig = 0
+	v.HazardThreshold = -1
+	v.Hazards = nil
+	md, err := toml.Decode(text, v)
+	if err != nil {
+		var pe toml.ParseError
+		if errors.As(err, &pe) {
+			return nil, fmt.Errorf("%s:%d:%d: %w: %s", name, pe.Position.Line, pe.Position.Col, ErrValues, pe.Message)
+		}
+		return nil, fmt.Errorf("%s: %w: %v", name, ErrValues, err)
+	}
+	if und := md.Undecoded(); len(und) > 0 {
+		return nil, fmt.Errorf("%s: %w: unknown key %q", name, ErrValues, und[0].String())
+	}
+	if !md.IsDefined("cost_per_dig") {
+		v.CostPerDig = 1
+	}
+	if !md.IsDefined("hazards") {
+		v.Hazards = []string{"ordnance"}
+	}
+	if v.HazardThreshold < 0 {
+		v.HazardThreshold = DefaultHazardThreshold
+	}
+	if v.HazardThreshold > 1 || v.CostPerDig < 0 {
+		return nil, fmt.Errorf("%s: %w: need 0 <= hazard_threshold <= 1 and cost_per_dig >= 0", name, ErrValues)
+	}
+	norm := map[string]float64{}
+	for k, x := range v.Value {
+		norm[strings.ToLower(strings.TrimSpace(k))] = x
+	}
+	v.Value = norm
+	for i := range v.Hazards {
+		v.Hazards[i] = strings.ToLower(strings.TrimSpace(v.Hazards[i]))
+	}
+	for i := range v.Keep {
+		v.Keep[i] = strings.ToLower(strings.TrimSpace(v.Keep[i]))
+	}
+	return v, nil
+}
+
+// ValueOf is a class's worth: its own entry, else its material's, else its
+// shape's, else 0.
+func (v *Values) ValueOf(class string) float64 {
+	if x, ok := v.Value[class]; ok {
+		return x
+	}
+	m, s := features.SplitClass(class)
+	if x, ok := v.Value[m]; ok {
+		return x
+	}
+	if x, ok := v.Value[s]; ok {
+		return x
+	}
+	return 0
+}
+
+// matches reports whether a rule names the class, its material or its shape.
+func matches(rules []string, class string) bool {
+	m, s := features.SplitClass(class)
+	return slices.Contains(rules, class) || slices.Contains(rules, m) || slices.Contains(rules, s)
+}
+
+// IsHazard reports whether a class is never to be dug.
+func (v *Values) IsHazard(class string) bool { return matches(v.Hazards, class) }
+
+// IsKeeper reports whether a class is worth more than a dig, or listed.
+func (v *Values) IsKeeper(class string) bool {
+	if v.IsHazard(class) {
+		return false
+	}
+	return matches(v.Keep, class) || v.ValueOf(class) > v.CostPerDig
+}
+
+// Split sorts classes into keepers and hazards.
+func (v *Values) Split(classes []string) (keepers, hazards []string) {
+	for _, c := range classes {
+		switch {
+		case v.IsHazard(c):
+			hazards = append(hazards, c)
+		case v.IsKeeper(c):
+			keepers = append(keepers, c)
+		}
+	}
+	return keepers, hazards
+}

@@ -1,0 +1,94 @@
+package main
+
+import (
+	"os"
+	"strconv"
+	"strings"
+	"time"
+
+	"github.com/spade-detect/spade/classify"
+	"github.com/spade-detect/spade/features"
+	"github.com/spf13/pflag"
+)
+
+// labelFlag is --label, shared by train and evaluate.
+type labelFlag struct{ value string }
+
+func (l *labelFlag) AddFlags(fs *pflag.FlagSet) {
+	fs.StringVar(&l.value, "label", "both", "what to tell apart: material, shape, or both (the joint class material/shape)")
+}
+
+func (l *labelFlag) label() (features.Label, error) {
+	k, ok := features.ParseLabel(l.value)
+	if !ok {
+		return "", usagef("--label: want material, shape or both, got %q", l.value)
+	}
+	return k, nil
+}
+
+// formatFlag is --format.
+type formatFlag struct {
+	value   string
+	allowed []string
+}
+
+func (f *formatFlag) AddFlags(fs *pflag.FlagSet, allowed ...string) {
+	f.allowed = allowed
+	fs.StringVar(&f.value, "format", allowed[0], strings.Join(allowed, ", "))
+}
+
+func (f *formatFlag) check() error {
+	for _, a := range f.allowed {
+		if f.value == a {
+			return nil
+		}
+	}
+	return usagef("--format: want %s, got %q", strings.Join(f.allowed, " or "), f.value)
+}
+
+func (f *formatFlag) json() bool { return f.value == "json" }
+
+// valuesFlags are --values FILE and --keep LIST.
+type valuesFlags struct {
+	file string
+	keep string
+}
+
+func (v *valuesFlags) AddFlags(fs *pflag.FlagSet) {
+	fs.StringVar(&v.file, "values", "", "your values file (TOML): worth per class, cost per dig, hazards")
+	fs.StringVar(&v.keep, "keep", "", "keeper classes, materials or shapes, comma separated (instead of or added to --values)")
+}
+
+// load gives the values, or nil when neither flag is set.
+func (v *valuesFlags) load() (*classify.Values, error) {
+	var vals *classify.Values
+	if v.file != "" {
+		var err error
+		if vals, err = classify.LoadValues(v.file); err != nil {
+			return nil, err
+		}
+	}
+	if v.keep != "" {
+		if vals == nil {
+			vals = classify.DefaultValues()
+			vals.CostPerDig = 0
+		}
+		for _, k := range strings.Split(v.keep, ",") {
+			if k = strings.ToLower(strings.TrimSpace(k)); k != "" {
+				vals.Keep = append(vals.Keep, k)
+			}
+		}
+	}
+	return vals, nil
+}
+
+// today is the model's date: SOURCE_DATE_EPOCH when set (reproducible
+// builds' convention), else now.
+func today() time.Time {
+	if s := os.Getenv("SOURCE_DATE_EPOCH"); s != "" {
+		if sec, err := strconv.ParseInt(s, 10, 64); err == nil {
+			return time.Unix(sec, 0).UTC()
+		}
+	}
+	return time.Now().UTC()
+}

@@ -1,0 +1,119 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"math"
+	"sort"
+	"strings"
+
+	"github.com/spade-detect/spade/train"
+)
+
+// pct writes a share as a whole percentage.
+func pct(v float64) string { return fmt.Sprintf("%3.0f%%", 100*v) }
+
+// bar draws a share as a bar of width cells.
+func bar(v float64, width int) string {
+	n := int(math.Round(v * float64(width)))
+	n = min(max(n, 0), width)
+	return strings.Repeat("█", n) + strings.Repeat("·", width-n)
+}
+
+// trunc shortens s to n runes.
+func trunc(s string, n int) string {
+	r := []rune(s)
+	if len(r) <= n {
+		return s
+	}
+	return string(r[:n-1]) + "…"
+}
+
+// writeEvaluation prints the cross-validated report in 80 columns.
+func writeEvaluation(w io.Writer, ev *train.Evaluation, label string) {
+	fmt.Fprintf(w, "Cross-validated on %d digs: %d folds (stratified), seed %d, %d classes (%s).\n\n",
+		ev.Digs, ev.Folds, ev.Seed, len(ev.Classes), label)
+	m, b := ev.Model, ev.Baseline
+	fmt.Fprintf(w, "%-26s %10s %18s\n", "", "spade", "one number")
+	fmt.Fprintf(w, "%-26s %10s %18s\n", "", "", "("+ev.BaselineAxis+")")
+	row := func(name string, x, y float64, better string) {
+		fmt.Fprintf(w, "%-26s %10.3f %18.3f   %s\n", name, x, y, better)
+	}
+	row("accuracy", m.Accuracy, b.Accuracy, "higher is better")
+	row("balanced accuracy", m.BalancedAccuracy, b.BalancedAccuracy, "")
+	row("log-loss", m.LogLoss, b.LogLoss, "lower is better")
+	row("Brier score", m.Brier, b.Brier, "")
+	row("calibration error (ECE)", m.ECE, b.ECE, "")
+	if d := ev.DigSaving; d != nil {
+		fmt.Fprintf(w, "\nDig saving: trash digs you could have skipped, keeping your keepers\n")
+		fmt.Fprintf(w, "(%d keeper and %d trash digs)\n", d.KeeperDigs, d.TrashDigs)
+		fmt.Fprint(w, wrap("keepers: "+strings.Join(d.Keepers, ", "), 78, "  "))
+		fmt.Fprintf(w, "  %-22s %12s %18s\n", "keeping", "spade", "one number")
+		for i, p := range d.Model {
+			fmt.Fprintf(w, "  %-22s %12s %18s\n", fmt.Sprintf("%.0f%% of keepers", 100*p.Keep), pct(p.TrashSkipped)+" skip", pct(d.Baseline[i].TrashSkipped)+" skip")
+		}
+		if len(d.Hazards) > 0 {
+			fmt.Fprintf(w, "  (hazard classes %s are never to be dug and are left out)\n", strings.Join(d.Hazards, ", "))
+		}
+	}
+	fmt.Fprintf(w, "\nPer class (spade)%19s %9s %7s %6s\n", "digs", "precision", "recall", "F1")
+	for _, c := range ev.Classes {
+		pc := m.PerClass[c]
+		fmt.Fprintf(w, "  %-32s %5d %9.2f %7.2f %6.2f\n", trunc(c, 32), pc.Support, pc.Precision, pc.Recall, pc.F1)
+	}
+	writeConfusions(w, ev.Classes, m.Confusion)
+	fmt.Fprintf(w, "\nReliability (spade): when the top class has probability p, how often it is right\n")
+	fmt.Fprintf(w, "  %-10s %6s %8s %8s\n", "p", "digs", "mean p", "right")
+	for _, r := range m.Reliability {
+		if r.Count == 0 {
+			continue
+		}
+		fmt.Fprintf(w, "  %.1f-%.1f    %6d %8.2f %8.2f\n", r.Lo, r.Hi, r.Count, r.Confidence, r.Accuracy)
+	}
+}
+
+// wrap breaks text into lines of at most width columns, each indented.
+func wrap(text string, width int, indent string) string {
+	var b strings.Builder
+	line := indent
+	for _, word := range strings.Fields(text) {
+		if len([]rune(line))+len([]rune(word))+1 > width && strings.TrimSpace(line) != "" {
+			b.WriteString(strings.TrimRight(line, " ") + "\n")
+			line = indent + "  "
+		}
+		line += word + " "
+	}
+	if strings.TrimSpace(line) != "" {
+		b.WriteString(strings.TrimRight(line, " ") + "\n")
+	}
+	return b.String()
+}
+
+// writeConfusions lists the commonest mistakes, which read better in 80
+// columns than a 13-by-13 matrix (the JSON has the whole matrix).
+func writeConfusions(w io.Writer, classes []string, cm map[string]map[string]int) {
+	type mix struct {
+		truth, taken string
+		n, of        int
+	}
+	var mixes []mix
+	for _, t := range classes {
+		of := 0
+		for _, v := range cm[t] {
+			of += v
+		}
+		for _, p := range classes {
+			if p != t && cm[t][p] > 0 {
+				mixes = append(mixes, mix{t, p, cm[t][p], of})
+			}
+		}
+	}
+	sort.SliceStable(mixes, func(i, j int) bool { return mixes[i].n > mixes[j].n })
+	if len(mixes) == 0 {
+		return
+	}
+	fmt.Fprintf(w, "\nCommonest mistakes (spade, held-out)\n")
+	for _, x := range mixes[:min(8, len(mixes))] {
+		fmt.Fprintf(w, "  %-24s taken for %-24s %4d of %d\n", trunc(x.truth, 24), trunc(x.taken, 24), x.n, x.of)
+	}
+}
