@@ -97,4 +97,3 @@ func runTrain(ctx context.Context, g *globalOptions, opts trainOptions, args []s
 	fmt.Fprintln(g.stdout, "For the full report next to the single-number baseline: spade evaluate LOG")
 	return nil
 }
-
