@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"math/cmplx"
 	"math/rand/v2"
 
 	"github.com/spade-detect/spade/features"
@@ -91,13 +92,25 @@ var demoReadings = []demoReading{
 	{"bronze/coin", "Harrowmere Farm", 18, "simulated: bronze coin"},
 	{"steel/cap", "Sandle Reach", 5, "simulated: steel crown cap"},
 	{"silver/ring", "Sandle Reach", 10, "simulated: silver ring"},
-	{"", "Harrowmere Farm", 8, "simulated: magnetic stone, unlike anything in the history"},
+	{"", "Harrowmere Farm", 8, "simulated: small foil beside a wire fence, with interference unlike anything in the history"},
 }
 
-// magneticStone is a non-conducting, weakly permeable stone: a response the
-// history has never seen, for the novelty flag.
-func magneticStone(rng *rand.Rand) Response {
-	return sphere(mm(uniform(rng, [2]float64{30, 40})), 0, uniform(rng, [2]float64{1.3, 1.6}))
+// fenceInterference is a small target read beside a wire fence that
+// carries interference: an extra response three times the target's whose
+// phase falls from 160° to 20° across the band, with a little random jitter.
+// A passive target's phase only rises with frequency (90° + atan ωτ for a
+// loop), so nothing in a dig history reads like it: the example for the
+// novelty flag.
+func fenceInterference(rng *rand.Rand, freqs []int) Response {
+	foil := poles(DiscPoles(mm(8), mm(0.03), Conductivity["aluminium"])...)
+	extra := map[float64]complex128{}
+	for k, hz := range freqs {
+		w := 2 * math.Pi * float64(hz)
+		phase := 160 - 140*float64(k)/float64(max(len(freqs)-1, 1)) + 5*rng.NormFloat64()
+		// X - iR at that phase: X = A cos φ, R = A sin φ.
+		extra[w] = cmplx.Conj(cmplx.Rect(3*cmplx.Abs(foil(w)), phase*math.Pi/180))
+	}
+	return func(w float64) complex128 { return foil(w) + extra[w] }
 }
 
 // GenerateDemoReadings makes the embedded readings' bytes: unlabelled rows,
@@ -113,7 +126,7 @@ func GenerateDemoReadings() ([]byte, error) {
 		for attempt := 0; ; attempt++ {
 			var resp Response
 			if r.class == "" {
-				resp = magneticStone(rng)
+				resp = fenceInterference(rng, freqs)
 			} else {
 				resp = KindOf(r.class).draw(rng)
 			}

@@ -35,16 +35,16 @@ func TestCancelGroundRemovesSoil(t *testing.T) {
 	for i, hz := range freqs {
 		soil[i] = viscousSoil(hz, 1e-3, 2e-5, 1e-6)
 	}
-	// Pure ground under the coil, at another coil height (k = 3.7):
+	// Pure ground under the coil, at another coil height (k = 1.6):
 	// cancellation leaves nothing.
 	under := make([]Reading, len(freqs))
 	for i, g := range soil {
-		under[i] = Reading{Hz: g.Hz, X: 3.7 * g.X, R: 3.7 * g.R}
+		under[i] = Reading{Hz: g.Hz, X: 1.6 * g.X, R: 1.6 * g.R}
 	}
 	out := make([]Reading, len(freqs))
 	k := CancelGround(out, under, soil)
-	if !scalar.EqualWithinRel(k, 3.7, 1e-12) {
-		t.Errorf("k = %v, want 3.7", k)
+	if !scalar.EqualWithinRel(k, 1.6, 1e-12) {
+		t.Errorf("k = %v, want 1.6", k)
 	}
 	for _, r := range out {
 		if r.Amp() > 1e-15 {
@@ -53,10 +53,10 @@ func TestCancelGroundRemovesSoil(t *testing.T) {
 	}
 	// A conductor (τ = 10 µs) over strong soil: the soil swamps the
 	// target's phase until it is cancelled, and the fitted τ comes back.
-	target := synth(freqs, 0, 1e-3, 1e-5)
+	target := synth(freqs, 0, 2e-4, 1e-5)
 	total := make([]Reading, len(freqs))
 	for i := range target {
-		total[i] = Reading{Hz: freqs[i], X: target[i].X + 5*soil[i].X, R: target[i].R + 5*soil[i].R}
+		total[i] = Reading{Hz: freqs[i], X: target[i].X + 1.8*soil[i].X, R: target[i].R + 1.8*soil[i].R}
 	}
 	CancelGround(out, total, soil)
 	raw, _ := FitPole(total)
@@ -77,5 +77,30 @@ func TestCancelGroundNeverAddsSoil(t *testing.T) {
 	out := make([]Reading, 1)
 	if k := CancelGround(out, tg, g); k != 0 || out[0] != tg[0] {
 		t.Errorf("k = %v, out %v", k, out[0])
+	}
+}
+
+func TestCancelGroundSparesFerrousTarget(t *testing.T) {
+	// An iron-like target (small phase, like the soil's) ten times the
+	// logged ground: the capped coefficient removes at most twice the ground
+	// reading and leaves the target's phase and most of its amplitude.
+	freqs := []int{5000, 10000, 20000, 40000}
+	soil := make([]Reading, len(freqs))
+	target := synth(freqs, 1, 0.3, 2e-5) // mostly in-phase, phase 5-15°
+	total := make([]Reading, len(freqs))
+	for i, hz := range freqs {
+		soil[i] = viscousSoil(hz, 1e-3, 2e-5, 1e-6)
+		s := 0.1 * target[i].Amp() / soil[i].Amp()
+		soil[i] = Reading{Hz: hz, X: s * soil[i].X, R: s * soil[i].R}
+		total[i] = Reading{Hz: hz, X: target[i].X + soil[i].X, R: target[i].R + soil[i].R}
+	}
+	out := make([]Reading, len(freqs))
+	if k := CancelGround(out, total, soil); k != MaxGroundShare {
+		t.Errorf("k = %v, want the cap %v", k, MaxGroundShare)
+	}
+	for i := range out {
+		if out[i].Amp() < 0.8*target[i].Amp() || math.Abs(out[i].Phase()-target[i].Phase()) > 3 {
+			t.Errorf("%d Hz: %v left of target %v", freqs[i], out[i], target[i])
+		}
 	}
 }

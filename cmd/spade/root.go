@@ -97,6 +97,7 @@ func newRootCommand(g *globalOptions) *cobra.Command {
 		newTrainCommand(g),
 		newEvaluateCommand(g),
 		newInspectCommand(g),
+		newClassifyCommand(g),
 	)
 	for _, c := range root.Commands() {
 		c.Args = wrapArgs(c.Args)

@@ -1,0 +1,278 @@
+package classify
+
+import (
+	"bytes"
+	"errors"
+	"context"
+	"math"
+	"slices"
+	"sort"
+	"sync"
+	"testing"
+	"time"
+
+	"github.com/spade-detect/spade/datasets"
+	"github.com/spade-detect/spade/features"
+	"github.com/spade-detect/spade/train"
+	"gonum.org/v1/gonum/spatial/kdtree"
+)
+
+var model struct {
+	sync.Once
+	b   *train.Bundle
+	log *features.Log
+}
+
+// demoModel is a 100-tree model of the embedded demo history.
+func demoModel(t testing.TB) (*train.Bundle, *features.Log) {
+	model.Do(func() {
+		log, err := features.ReadLog(bytes.NewReader(datasets.DemoHistory), datasets.DemoHistoryName, features.ReadOptions{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		spec := features.NewSpec(log.Freqs, log.HasDisplayID)
+		model.b, err = train.TrainBundle(context.Background(), log, spec, train.TrainOptions{Forest: train.Options{Trees: 100, Seed: 1}, Now: time.Unix(0, 0)})
+		if err != nil {
+			t.Fatal(err)
+		}
+		model.log = log
+	})
+	return model.b, model.log
+}
+
+func demoReadings(t testing.TB) []features.Dig {
+	log, err := features.ReadLog(bytes.NewReader(datasets.DemoReadings), datasets.DemoReadingsName, features.ReadOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return log.Digs
+}
+
+func TestProbabilitiesSumToOne(t *testing.T) {
+	b, _ := demoModel(t)
+	c := New(b, nil)
+	for _, d := range demoReadings(t) {
+		r, err := c.Classify(&d)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var s, ms, ss float64
+		for _, p := range r.Probabilities {
+			s += p
+		}
+		for _, m := range r.Materials {
+			ms += m.Probability
+		}
+		for _, x := range r.Shapes {
+			ss += x.Probability
+		}
+		for name, v := range map[string]float64{"classes": s, "materials": ms, "shapes": ss} {
+			if math.Abs(v-1) > 1e-9 {
+				t.Errorf("%s: %s sum to %v", d.ID, name, v)
+			}
+		}
+		if !sort.SliceIsSorted(r.Ranked, func(i, j int) bool { return r.Ranked[i].Probability > r.Ranked[j].Probability }) || r.Top != r.Ranked[0] {
+			t.Errorf("%s: ranking not sorted", d.ID)
+		}
+	}
+}
+
+// whitenedPoints are the training vectors in the classifier's space, as
+// gonum kd-tree points.
+func whitenedPoints(s *space) kdtree.Points {
+	n := len(s.ref) / s.dims
+	pts := make(kdtree.Points, n)
+	for i := range n {
+		pts[i] = kdtree.Point(s.ref[i*s.dims : (i+1)*s.dims])
+	}
+	return pts
+}
+
+func TestNearestAgainstReferences(t *testing.T) {
+	// The early-abandoning scan must find what a full sort of all distances
+	// finds, and what gonum's k-d tree (spatial/kdtree) finds.
+	b, _ := demoModel(t)
+	c := New(b, nil)
+	s := c.space
+	tree := kdtree.New(whitenedPoints(s), false)
+	n := len(s.ref) / s.dims
+	var q []float64
+	for _, d := range demoReadings(t) {
+		v, _, _ := b.Spec.Extract(&d, nil)
+		q = s.standardise(v, q)
+		got := s.nearest(q, 5, -1, nil)
+		// Brute force: every distance, sorted.
+		all := make([]Neighbour, n)
+		for i := range n {
+			var sum float64
+			for j := range s.dims {
+				e := s.ref[i*s.dims+j] - q[j]
+				sum += e * e
+			}
+			all[i] = Neighbour{Distance: math.Sqrt(sum), index: i}
+		}
+		sort.SliceStable(all, func(i, j int) bool { return all[i].Distance < all[j].Distance })
+		keep := kdtree.NewNKeeper(5)
+		tree.NearestSet(keep, kdtree.Point(q))
+		var kd []float64
+		for _, h := range keep.Heap {
+			kd = append(kd, math.Sqrt(h.Dist))
+		}
+		slices.Sort(kd)
+		for k := range 5 {
+			if got[k].index != all[k].index || math.Abs(got[k].Distance-all[k].Distance) > 1e-12 {
+				t.Errorf("%s #%d: scan row %d at %v, brute force row %d at %v", d.ID, k, got[k].index, got[k].Distance, all[k].index, all[k].Distance)
+			}
+			if math.Abs(got[k].Distance-kd[k]) > 1e-9 {
+				t.Errorf("%s #%d: scan %v, gonum k-d tree %v", d.ID, k, got[k].Distance, kd[k])
+			}
+		}
+	}
+}
+
+func TestWhitenedDistanceIsMahalanobis(t *testing.T) {
+	// Mahalanobis (1936): d² = (x-μ)ᵀ Σ⁻¹ (x-μ). With Σ = [[4, 3], [3, 4]],
+	// Σ⁻¹ = [[4, -3], [-3, 4]]/7, so (1, -1) from the mean has
+	// d² = (4 + 3 + 3 + 4)/7 = 2, where a per-feature z-score gives 0.5.
+	// The sample: x = u + v, y = u - v over the four sign choices of
+	// u = ±a, v = ±b; with gonum's n-1 divisor var(u) = 4a²/3 = 3.5 and
+	// var(v) = 4b²/3 = 0.5 give var x = var y = 4 and cov = 3.
+	a, b := math.Sqrt(3.5*3/4), math.Sqrt(0.5*3/4)
+	var vectors [][]float64
+	for _, p := range [][2]float64{{1, 1}, {-1, -1}, {1, -1}, {-1, 1}} {
+		u, v := p[0]*a, p[1]*b
+		vectors = append(vectors, []float64{u + v, u - v})
+	}
+	s := newSpace(vectors)
+	w := s.standardise([]float64{1, -1}, nil)
+	if d2 := w[0]*w[0] + w[1]*w[1]; math.Abs(d2-2) > 1e-12 {
+		t.Errorf("d² = %v, want 2", d2)
+	}
+}
+
+func TestCautionWhenAndOnlyWhen(t *testing.T) {
+	b, _ := demoModel(t)
+	hazard := slices.Index(b.Classes, "steel/ordnance")
+	for _, threshold := range []float64{0, 0.01, 0.2, 1} {
+		v := DefaultValues()
+		v.HazardThreshold = threshold
+		c := New(b, v)
+		for _, d := range demoReadings(t) {
+			r, _ := c.Classify(&d)
+			p := r.Probabilities[b.Classes[hazard]]
+			want := p >= threshold && p > 0
+			if (r.Caution != nil) != want {
+				t.Errorf("threshold %v, %s: hazard p %v, caution %v", threshold, d.ID, p, r.Caution != nil)
+			}
+			if r.Caution != nil && (r.Decision.Verdict != "do not dig" || r.Caution.Message != CautionMessage) {
+				t.Errorf("%s: caution but verdict %q", d.ID, r.Decision.Verdict)
+			}
+			if r.Caution == nil && r.Decision.Verdict == "do not dig" {
+				t.Errorf("%s: do not dig without a caution", d.ID)
+			}
+		}
+	}
+	// The simulated projectile (R05) raises the caution at the default 1 %.
+	c := New(b, nil)
+	for _, d := range demoReadings(t) {
+		if d.ID == "R05" {
+			if r, _ := c.Classify(&d); r.Caution == nil {
+				t.Error("R05, a simulated projectile, gets no caution")
+			}
+		}
+	}
+}
+
+func TestNoHazardClassWarns(t *testing.T) {
+	b, _ := demoModel(t)
+	v := DefaultValues()
+	v.Hazards = []string{"landmine"}
+	if w := New(b, v).Warnings(); len(w) != 1 {
+		t.Errorf("warnings %q", w)
+	}
+	if w := New(b, nil).Warnings(); len(w) != 0 {
+		t.Errorf("warnings %q", w)
+	}
+}
+
+func TestUnfamiliarFarOutsideButNotTrainingDigs(t *testing.T) {
+	b, log := demoModel(t)
+	c := New(b, nil)
+	// A reading no passive target gives: phase falling 150° across the band.
+	far, err := ParseInline("5k=170/1, 10k=120/1, 20k=70/1, 40k=20/1, id=50")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r, _ := c.Classify(far); !r.Novelty.Unfamiliar {
+		t.Errorf("far reading: percentile %v, not unfamiliar", r.Novelty.Percentile)
+	}
+	// Training digs: by construction about 1 % of them score above the
+	// 99th percentile of their own leave-one-out scores; as queries they
+	// also find themselves at distance 0, so fewer still.
+	unfamiliar := 0
+	for i := range log.Digs {
+		r, _ := c.Classify(&log.Digs[i])
+		if r.Novelty.Unfamiliar {
+			unfamiliar++
+		}
+		if i == 0 && (r.Neighbours[0].Dig != log.Digs[0].ID || r.Neighbours[0].Distance > 1e-9) {
+			t.Errorf("training dig %s: nearest %+v", log.Digs[0].ID, r.Neighbours[0])
+		}
+	}
+	if unfamiliar > len(log.Digs)/100 {
+		t.Errorf("%d of %d training digs unfamiliar", unfamiliar, len(log.Digs))
+	}
+}
+
+func TestFrequencyMismatchRefused(t *testing.T) {
+	b, _ := demoModel(t)
+	d, _ := ParseInline("5k=120/1, 10k=130/1, 15k=140/1, id=50")
+	_, err := New(b, nil).Classify(d)
+	var fm *features.FreqMismatchError
+	if err == nil || !errorsAs(err, &fm) || !slices.Equal(fm.Missing, []int{20000, 40000}) || !slices.Equal(fm.Unexpected, []int{15000}) {
+		t.Errorf("error %v", err)
+	}
+}
+
+func TestDecisionByValues(t *testing.T) {
+	// Expected value Σ p·value - cost, by hand on the gold ring reading.
+	b, _ := demoModel(t)
+	v, err := ParseValues("v.toml", "cost_per_dig = 5\n[value]\n\"gold/ring\" = 100\nring-pull = -1\n")
+	if err != nil {
+		t.Fatal(err)
+	}
+	c := New(b, v)
+	d := demoReadings(t)[0] // R01, a simulated gold ring
+	r, _ := c.Classify(&d)
+	want := 100*r.Probabilities["gold/ring"] - r.Probabilities["aluminium/ring-pull"] - 5
+	if math.Abs(r.Decision.ExpectedValue-want) > 1e-9 {
+		t.Errorf("expected value %v, want %v", r.Decision.ExpectedValue, want)
+	}
+	if (want > 0) != (r.Decision.Verdict == "dig") {
+		t.Errorf("verdict %q at expected value %v", r.Decision.Verdict, want)
+	}
+}
+
+func BenchmarkClassifyReading(b *testing.B) {
+	// Issue 5 target: 50 µs or less a reading with a 200-tree forest,
+	// feature extraction included, on the demo history.
+	log, err := features.ReadLog(bytes.NewReader(datasets.DemoHistory), datasets.DemoHistoryName, features.ReadOptions{})
+	if err != nil {
+		b.Fatal(err)
+	}
+	bundle, err := train.TrainBundle(context.Background(), log, features.NewSpec(log.Freqs, true), train.TrainOptions{Forest: train.Options{Trees: 200, Seed: 1}, Now: time.Unix(0, 0)})
+	if err != nil {
+		b.Fatal(err)
+	}
+	c := New(bundle, nil)
+	digs := demoReadings(b)
+	b.ReportAllocs()
+	b.ResetTimer()
+	for i := range b.N {
+		if _, err := c.Classify(&digs[i%len(digs)]); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+func errorsAs(err error, target any) bool { return errors.As(err, target) }

@@ -1,0 +1,311 @@
+package main
+
+import (
+	"bufio"
+	"context"
+	"encoding/csv"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"slices"
+	"strconv"
+	"strings"
+
+	"github.com/spade-detect/spade/classify"
+	"github.com/spade-detect/spade/features"
+	"github.com/spade-detect/spade/train"
+	"github.com/spf13/cobra"
+	"github.com/spf13/pflag"
+)
+
+type classifyOptions struct {
+	log     logOptions
+	format  formatFlag
+	values  valuesFlags
+	model   string
+	reading string
+	top     int
+	output  string
+}
+
+func (o *classifyOptions) AddFlags(fs *pflag.FlagSet) {
+	o.log.AddFlags(fs)
+	o.format.AddFlags(fs, "table", "json", "csv")
+	o.values.AddFlags(fs)
+	fs.StringVar(&o.model, "model", "", "the model file from spade train (required)")
+	fs.StringVarP(&o.reading, "reading", "r", "", `one reading typed inline: "5k=111.8/0.10, 20k=147.5/0.23, id=60"`)
+	fs.IntVar(&o.top, "top", 5, "classes shown per reading in the table")
+	fs.StringVarP(&o.output, "output", "o", "-", "write the results to `FILE` (- is standard output)")
+}
+
+func newClassifyCommand(g *globalOptions) *cobra.Command {
+	var opts classifyOptions
+	cmd := &cobra.Command{
+		Use:   "classify --model MODEL [READINGS|-]",
+		Short: "Give class probabilities, nearest past digs and a dig decision for new readings",
+		Long: `classify reads new readings (a dig-log file in CSV or JSON Lines, - for standard
+input, or one reading typed with --reading) and gives for each: the probability
+of every class, sorted, with marginals per material and per shape; the nearest
+past digs in your history; a novelty score (a percentile of your own digs'
+scores; above the 99th the reading is unfamiliar and its probabilities are not
+to be trusted); and the dig decision by your values file.
+
+If a hazardous class (by default any shape "ordnance") reaches 1% (or the
+values file's hazard_threshold), the caution comes first: do not dig, mark the
+spot and report it to the authorities. Such a reading is never called safe. A
+probability is never a guarantee.
+
+Inline readings: HZ=PHASE/AMP per frequency, separated by commas or spaces;
+id=N adds the display ID, gHZ=PHASE/AMP a bare-ground reading beside the target.
+Files of any size stream through in constant memory.`,
+		Example: "  spade classify --model my.spade new.csv\n" +
+			"  spade classify --model my.spade --values values.toml --format json new.jsonl\n" +
+			"  spade classify --model my.spade -r \"5k=111.8/0.10, 10k=129.0/0.17, 20k=147.5/0.23, 40k=163.2/0.26, id=60\"",
+		Args: cobra.MaximumNArgs(1),
+		RunE: func(cmd *cobra.Command, args []string) error { return runClassify(cmd.Context(), g, opts, args) },
+	}
+	opts.AddFlags(cmd.Flags())
+	return cmd
+}
+
+func runClassify(ctx context.Context, g *globalOptions, opts classifyOptions, args []string) error {
+	if err := opts.format.check(); err != nil {
+		return err
+	}
+	if opts.model == "" {
+		return usagef("classify needs --model MODEL (from spade train)")
+	}
+	if (opts.reading == "") == (len(args) == 0) {
+		return usagef("give a readings file (or - for standard input) or --reading, not both")
+	}
+	bundle, err := train.Load(opts.model)
+	if err != nil {
+		return err
+	}
+	vals, err := opts.values.load()
+	if err != nil {
+		return err
+	}
+	c := classify.New(bundle, vals)
+	for _, w := range c.Warnings() {
+		g.note("warning: %s", w)
+	}
+	next, name, closer, err := readingSource(g, opts, args)
+	if err != nil {
+		return err
+	}
+	defer closer()
+	return g.writeOutput(opts.output, func(w io.Writer) error {
+		out := newResultWriter(w, opts.format.value, bundle.Classes, opts.top)
+		n := 0
+		for {
+			if err := ctx.Err(); err != nil {
+				return err
+			}
+			d, err := next()
+			if errors.Is(err, io.EOF) {
+				break
+			}
+			if err != nil {
+				return err
+			}
+			r, err := c.Classify(&d)
+			if err != nil {
+				var pe *features.ParseError
+				if errors.As(err, &pe) {
+					return err
+				}
+				return &features.ParseError{File: name, Line: d.Line, Err: err}
+			}
+			if err := out.write(r); err != nil {
+				return err
+			}
+			n++
+		}
+		return out.close()
+	})
+}
+
+// readingSource yields the readings one at a time.
+func readingSource(g *globalOptions, opts classifyOptions, args []string) (func() (features.Dig, error), string, func(), error) {
+	if opts.reading != "" {
+		d, err := classify.ParseInline(opts.reading)
+		if err != nil {
+			return nil, "", nil, usageError{err}
+		}
+		done := false
+		return func() (features.Dig, error) {
+			if done {
+				return features.Dig{}, io.EOF
+			}
+			done = true
+			return *d, nil
+		}, "--reading", func() {}, nil
+	}
+	name := args[0]
+	f, err := openLog(g, name)
+	if err != nil {
+		return nil, "", nil, err
+	}
+	rd, err := features.NewReader(f, name, opts.log.readOptions())
+	if err != nil {
+		f.Close()
+		return nil, "", nil, err
+	}
+	return func() (features.Dig, error) {
+			d, err := rd.Next()
+			if errors.Is(err, io.EOF) {
+				g.reportRead(rd.Bad, rd.Ignored())
+			}
+			return d, err
+		}, name, func() {
+			f.Close()
+		}, nil
+}
+
+// resultWriter writes results in one of the three views.
+type resultWriter struct {
+	w       *bufio.Writer
+	format  string
+	classes []string
+	top     int
+	n       int
+	cw      *csv.Writer
+}
+
+func newResultWriter(w io.Writer, format string, classes []string, top int) *resultWriter {
+	return &resultWriter{w: bufio.NewWriter(w), format: format, classes: classes, top: top}
+}
+
+func (o *resultWriter) write(r *classify.Result) error {
+	defer func() { o.n++ }()
+	switch o.format {
+	case "json":
+		b, err := json.MarshalIndent(r, "  ", "  ")
+		if err != nil {
+			return err
+		}
+		if o.n == 0 {
+			o.w.WriteString("[\n  ")
+		} else {
+			o.w.WriteString(",\n  ")
+		}
+		_, err = o.w.Write(b)
+		return err
+	case "csv":
+		if o.cw == nil {
+			o.cw = csv.NewWriter(o.w)
+			header := []string{"dig", "top_class", "top_probability", "verdict", "expected_value", "caution", "hazard_probability", "novelty_percentile", "unfamiliar", "nearest_dig", "nearest_class", "nearest_distance"}
+			for _, c := range o.classes {
+				header = append(header, "p_"+c)
+			}
+			o.cw.Write(header)
+		}
+		hp := 0.0
+		if r.Caution != nil {
+			hp = r.Caution.Probability
+		}
+		rec := []string{r.Dig, r.Top.Class, ff(r.Top.Probability), r.Decision.Verdict, ff(r.Decision.ExpectedValue),
+			strconv.FormatBool(r.Caution != nil), ff(hp), ff(r.Novelty.Percentile), strconv.FormatBool(r.Novelty.Unfamiliar)}
+		if len(r.Neighbours) > 0 {
+			rec = append(rec, r.Neighbours[0].Dig, r.Neighbours[0].Class, ff(r.Neighbours[0].Distance))
+		} else {
+			rec = append(rec, "", "", "")
+		}
+		for _, c := range o.classes {
+			rec = append(rec, ff(r.Probabilities[c]))
+		}
+		return o.cw.Write(rec)
+	default:
+		writeResultTable(o.w, r, o.top)
+		return nil
+	}
+}
+
+func ff(v float64) string { return strconv.FormatFloat(v, 'f', 4, 64) }
+
+func (o *resultWriter) close() error {
+	switch o.format {
+	case "json":
+		if o.n == 0 {
+			o.w.WriteString("[")
+		}
+		o.w.WriteString("\n]\n")
+	case "csv":
+		if o.cw != nil {
+			o.cw.Flush()
+			if err := o.cw.Error(); err != nil {
+				return err
+			}
+		}
+	}
+	return o.w.Flush()
+}
+
+// writeResultTable prints one reading in at most 80 columns; a caution is
+// the first thing said.
+func writeResultTable(w io.Writer, r *classify.Result, top int) {
+	fmt.Fprintf(w, "%s\n", strings.Repeat("─", 78))
+	if r.Caution != nil {
+		fmt.Fprintf(w, "%s  !! %s\n", r.Dig, r.Caution.Message)
+		fmt.Fprintf(w, "     (%s: %.1f%% in all; a probability is never a guarantee)\n", strings.Join(r.Caution.Classes, ", "), 100*r.Caution.Probability)
+	} else {
+		fmt.Fprintf(w, "%s  %s\n", r.Dig, verdictLine(r))
+	}
+	if r.Novelty.Unfamiliar {
+		fmt.Fprint(w, wrap("?? "+r.Decision.Note, 78, "     "))
+	}
+	for i, cp := range r.Ranked {
+		// The top classes, and always every class behind a caution.
+		hazard := r.Caution != nil && slices.Contains(r.Caution.Classes, cp.Class)
+		if !hazard && (i >= top || cp.Probability < 0.005) {
+			continue
+		}
+		fmt.Fprintf(w, "     %-28s %s %5.1f%%\n", trunc(cp.Class, 28), bar(cp.Probability, 30), 100*cp.Probability)
+	}
+	fmt.Fprint(w, wrap("material: "+shareList(r.Materials, 4), 78, "     "))
+	fmt.Fprint(w, wrap("shape: "+shareList(r.Shapes, 4), 78, "     "))
+	fmt.Fprintf(w, "     novelty: %s percentile of your digs\n", ordinal(int(r.Novelty.Percentile)))
+	var nb []string
+	for _, n := range r.Neighbours {
+		nb = append(nb, fmt.Sprintf("%s %s (%s, %.2f)", n.Dig, n.Class, n.Date, n.Distance))
+	}
+	fmt.Fprint(w, wrap("nearest past digs: "+strings.Join(nb, "; "), 78, "     "))
+}
+
+func verdictLine(r *classify.Result) string {
+	d := r.Decision
+	switch d.Verdict {
+	case "dig":
+		return fmt.Sprintf("DIG: %s %.0f%%, expected value %+.1f by your values", r.Top.Class, 100*r.Top.Probability, d.ExpectedValue)
+	default:
+		return fmt.Sprintf("skip: %s %.0f%%, expected value %+.1f by your values", r.Top.Class, 100*r.Top.Probability, d.ExpectedValue)
+	}
+}
+
+func shareList(ps []classify.ClassP, n int) string {
+	var s []string
+	for _, p := range ps[:min(n, len(ps))] {
+		if p.Probability < 0.005 {
+			break
+		}
+		s = append(s, fmt.Sprintf("%s %.0f%%", p.Class, 100*p.Probability))
+	}
+	return strings.Join(s, ", ")
+}
+
+// ordinal writes 1st, 2nd, 3rd, 4th, 11th, 21st...
+func ordinal(n int) string {
+	suffix := "th"
+	switch {
+	case n%100 >= 11 && n%100 <= 13:
+	case n%10 == 1:
+		suffix = "st"
+	case n%10 == 2:
+		suffix = "nd"
+	case n%10 == 3:
+		suffix = "rd"
+	}
+	return fmt.Sprintf("%d%s", n, suffix)
+}
