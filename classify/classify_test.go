@@ -2,8 +2,8 @@ package classify
 
 import (
 	"bytes"
-	"errors"
 	"context"
+	"errors"
 	"math"
 	"slices"
 	"sort"
