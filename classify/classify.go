@@ -1,7 +1,9 @@
 package classify
 
 import (
+	"encoding/json"
 	"fmt"
+	"strconv"
 	"slices"
 	"sort"
 
@@ -45,6 +47,12 @@ func New(b *train.Bundle, values *Values) *Classifier {
 	return c
 }
 
+// Clone is a classifier sharing this one's model, space and reference
+// scores (read only) with scratch space of its own, for another goroutine.
+func (c *Classifier) Clone() *Classifier {
+	return &Classifier{bundle: c.bundle, values: c.values, space: c.space, reference: c.reference, hazard: c.hazard, worth: c.worth}
+}
+
 // Warnings are remarks about the model and values as a whole, for the user
 // to read once: above all, when the model cannot warn of ordnance.
 func (c *Classifier) Warnings() []string {
@@ -82,12 +90,13 @@ type Decision struct {
 	Note          string  `json:"note,omitempty"`
 }
 
-// Result is one reading's answer. Its JSON is classify's contract.
+// Result is one reading's answer. Its JSON is classify's contract; the
+// probabilities object lists the classes most probable first.
 type Result struct {
 	Dig           string             `json:"dig"`
-	Probabilities map[string]float64 `json:"probabilities"`
+	Probabilities map[string]float64 `json:"-"`
 	Top           ClassP             `json:"top"`
-	Ranked        []ClassP           `json:"ranked"`
+	Ranked        []ClassP           `json:"-"` // the probabilities object is in this order
 	Materials     []ClassP           `json:"materials"`
 	Shapes        []ClassP           `json:"shapes"`
 	Novelty       Novelty            `json:"novelty"`
@@ -184,4 +193,35 @@ func ranked(m map[string]float64) []ClassP {
 		return out[i].Class < out[j].Class
 	})
 	return out
+}
+
+// probabilityObject writes ranked classes as one JSON object, in rank order,
+// without the cost of sorting a map's keys for every reading.
+type probabilityObject []ClassP
+
+func (p probabilityObject) MarshalJSON() ([]byte, error) {
+	b := []byte{'{'}
+	for i, cp := range p {
+		if i > 0 {
+			b = append(b, ',')
+		}
+		key, err := json.Marshal(cp.Class)
+		if err != nil {
+			return nil, err
+		}
+		b = append(b, key...)
+		b = append(b, ':')
+		b = strconv.AppendFloat(b, cp.Probability, 'g', -1, 64)
+	}
+	return append(b, '}'), nil
+}
+
+// MarshalJSON writes the result with its probabilities as an object.
+func (r *Result) MarshalJSON() ([]byte, error) {
+	type plain Result
+	return json.Marshal(struct {
+		Dig           string            `json:"dig"`
+		Probabilities probabilityObject `json:"probabilities"`
+		*plain
+	}{r.Dig, probabilityObject(r.Ranked), (*plain)(r)})
 }

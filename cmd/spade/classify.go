@@ -8,9 +8,11 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"runtime"
 	"slices"
 	"strconv"
 	"strings"
+	"sync"
 
 	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/features"
@@ -98,33 +100,70 @@ func runClassify(ctx context.Context, g *globalOptions, opts classifyOptions, ar
 	defer closer()
 	return g.writeOutput(opts.output, func(w io.Writer) error {
 		out := newResultWriter(w, opts.format.value, bundle.Classes, opts.top)
-		n := 0
-		for {
-			if err := ctx.Err(); err != nil {
-				return err
-			}
+		if err := classifyStream(ctx, c, next, name, out.write); err != nil {
+			return err
+		}
+		return out.close()
+	})
+}
+
+// classifyBatch is how many readings are read before they are classified
+// in parallel: enough to keep every core busy, few enough that memory stays
+// constant whatever the file's size.
+const classifyBatch = 512
+
+// classifyStream classifies readings in batches on every core and hands the
+// results to emit in input order.
+func classifyStream(ctx context.Context, c *classify.Classifier, next func() (features.Dig, error), name string, emit func(*classify.Result) error) error {
+	workers := runtime.GOMAXPROCS(0)
+	clones := []*classify.Classifier{c}
+	for len(clones) < workers {
+		clones = append(clones, c.Clone())
+	}
+	batch := make([]features.Dig, 0, classifyBatch)
+	results := make([]*classify.Result, classifyBatch)
+	errs := make([]error, classifyBatch)
+	for done := false; !done; {
+		if err := ctx.Err(); err != nil {
+			return err
+		}
+		batch = batch[:0]
+		for len(batch) < classifyBatch {
 			d, err := next()
 			if errors.Is(err, io.EOF) {
+				done = true
 				break
 			}
 			if err != nil {
 				return err
 			}
-			r, err := c.Classify(&d)
-			if err != nil {
-				var pe *features.ParseError
-				if errors.As(err, &pe) {
-					return err
+			batch = append(batch, d)
+		}
+		var wg sync.WaitGroup
+		for wi, cl := range clones {
+			wg.Add(1)
+			go func() {
+				defer wg.Done()
+				for i := wi; i < len(batch); i += len(clones) {
+					results[i], errs[i] = cl.Classify(&batch[i])
 				}
-				return &features.ParseError{File: name, Line: d.Line, Err: err}
+			}()
+		}
+		wg.Wait()
+		for i := range batch {
+			if errs[i] != nil {
+				var pe *features.ParseError
+				if errors.As(errs[i], &pe) {
+					return errs[i]
+				}
+				return &features.ParseError{File: name, Line: batch[i].Line, Err: errs[i]}
 			}
-			if err := out.write(r); err != nil {
+			if err := emit(results[i]); err != nil {
 				return err
 			}
-			n++
 		}
-		return out.close()
-	})
+	}
+	return nil
 }
 
 // readingSource yields the readings one at a time.
@@ -182,14 +221,14 @@ func (o *resultWriter) write(r *classify.Result) error {
 	defer func() { o.n++ }()
 	switch o.format {
 	case "json":
-		b, err := json.MarshalIndent(r, "  ", "  ")
+		b, err := json.Marshal(r)
 		if err != nil {
 			return err
 		}
 		if o.n == 0 {
-			o.w.WriteString("[\n  ")
+			o.w.WriteString("[\n")
 		} else {
-			o.w.WriteString(",\n  ")
+			o.w.WriteString(",\n")
 		}
 		_, err = o.w.Write(b)
 		return err
@@ -248,7 +287,8 @@ func (o *resultWriter) close() error {
 func writeResultTable(w io.Writer, r *classify.Result, top int) {
 	fmt.Fprintf(w, "%s\n", strings.Repeat("─", 78))
 	if r.Caution != nil {
-		fmt.Fprintf(w, "%s  !! %s\n", r.Dig, r.Caution.Message)
+		first, rest, _ := strings.Cut(r.Caution.Message, ". ")
+		fmt.Fprintf(w, "%s  !! %s.\n     %s\n", r.Dig, first, rest)
 		fmt.Fprintf(w, "     (%s: %.1f%% in all; a probability is never a guarantee)\n", strings.Join(r.Caution.Classes, ", "), 100*r.Caution.Probability)
 	} else {
 		fmt.Fprintf(w, "%s  %s\n", r.Dig, verdictLine(r))
