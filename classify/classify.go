@@ -3,9 +3,9 @@ package classify
 import (
 	"encoding/json"
 	"fmt"
-	"strconv"
 	"slices"
 	"sort"
+	"strconv"
 
 	"github.com/spade-detect/spade/features"
 	"github.com/spade-detect/spade/train"
