@@ -98,6 +98,7 @@ func newRootCommand(g *globalOptions) *cobra.Command {
 		newEvaluateCommand(g),
 		newInspectCommand(g),
 		newClassifyCommand(g),
+		newOverlapCommand(g),
 	)
 	for _, c := range root.Commands() {
 		c.Args = wrapArgs(c.Args)

@@ -1,0 +1,320 @@
+package main
+
+import (
+	"context"
+	"encoding/csv"
+	"encoding/json"
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+
+	"github.com/spade-detect/spade/classify"
+	"github.com/spade-detect/spade/classify/overlap"
+	"github.com/spade-detect/spade/classify/plots"
+	"github.com/spade-detect/spade/features"
+	"github.com/spade-detect/spade/train"
+	"github.com/spf13/cobra"
+	"github.com/spf13/pflag"
+)
+
+type overlapOptions struct {
+	log            logOptions
+	label          labelFlag
+	format         formatFlag
+	values         valuesFlags
+	model          string
+	by             string
+	bin            float64
+	minTop         float64
+	maxEntropy     float64
+	plot           string
+	seed           uint64
+	trees          int
+	skipUnlabelled bool
+	output         string
+}
+
+func (o *overlapOptions) AddFlags(fs *pflag.FlagSet) {
+	o.log.AddFlags(fs)
+	o.label.AddFlags(fs)
+	o.format.AddFlags(fs, "table", "json", "csv")
+	o.values.AddFlags(fs)
+	fs.StringVar(&o.model, "model", "", "use this model's out-of-bag probabilities (digs matched by id) instead of cross-validating")
+	fs.StringVar(&o.by, "by", "", "the single-number axis: display_id or phase_<hz> (default: display_id when the log has it)")
+	fs.Float64Var(&o.bin, "bin", 0, "bin width in the axis's units (default: about 30 digs a bin, rounded)")
+	fs.Float64Var(&o.minTop, "min-top-share", 0.8, "a bin is ambiguous when its top class has less than this share")
+	fs.Float64Var(&o.maxEntropy, "max-entropy", 1, "or when its entropy is above this many bits")
+	fs.StringVar(&o.plot, "plot", "", "also draw the class shares per bin into `FILE` (.png or .svg)")
+	fs.Uint64Var(&o.seed, "seed", 1, "random seed for the cross-validation")
+	fs.IntVar(&o.trees, "trees", 200, "trees in each cross-validation forest")
+	fs.BoolVar(&o.skipUnlabelled, "skip-unlabelled", false, "skip rows without material and shape, counting them")
+	fs.StringVarP(&o.output, "output", "o", "-", "write the report to `FILE` (- is standard output)")
+}
+
+func newOverlapCommand(g *globalOptions) *cobra.Command {
+	var opts overlapOptions
+	cmd := &cobra.Command{
+		Use:   "overlap LOG",
+		Short: "Show which ID ranges are ambiguous on your ground, and what the model resolves there",
+		Long: `overlap shows, from your own history, which values of your detector's single
+number "could be anything": per bin, the dig count, class shares, entropy and
+top classes; adjacent bins where the top class has under 80% or the entropy is
+over 1 bit merge into ambiguous ranges. Each range lists what collides there
+and each keeper's chance in words ("1 in 14 digs between 84 and 90 was a gold
+ring"); ranges where only trash collides are marked (skipping them costs
+nothing). For each range it compares the majority-of-bin rule with spade's
+held-out predictions (cross-validated, or a model's out-of-bag ones): accuracy,
+mean entropy before and after, and the trash skippable there while keeping
+99% of keepers.`,
+		Example: "  spade overlap digs.csv --values values.toml --plot overlap.png\n" +
+			"  spade overlap digs.csv --model my.spade --by phase_10000 --bin 3 --format json",
+		Args: cobra.ExactArgs(1),
+		RunE: func(cmd *cobra.Command, args []string) error { return runOverlap(cmd.Context(), g, opts, args) },
+	}
+	opts.AddFlags(cmd.Flags())
+	return cmd
+}
+
+func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args []string) error {
+	if err := opts.format.check(); err != nil {
+		return err
+	}
+	if opts.plot != "" {
+		if _, err := plots.FormatOf(opts.plot); err != nil {
+			return usageError{err}
+		}
+	}
+	if opts.minTop <= 0 || opts.minTop > 1 || opts.maxEntropy <= 0 || opts.bin < 0 {
+		return usagef("need 0 < --min-top-share <= 1, --max-entropy > 0 and --bin >= 0")
+	}
+	kind, err := opts.label.label()
+	if err != nil {
+		return err
+	}
+	vals, err := opts.values.load()
+	if err != nil {
+		return err
+	}
+	ro := opts.log.readOptions()
+	ro.Require, ro.SkipUnlabelled = kind, opts.skipUnlabelled
+	log, err := g.readLog(args[0], ro)
+	if err != nil {
+		return err
+	}
+	spec := features.NewSpec(log.Freqs, log.HasDisplayID)
+	ds, err := train.FromLog(log, spec, kind)
+	if err != nil {
+		return err
+	}
+	var probs [][]float64
+	if opts.model != "" {
+		if probs, err = modelProbs(opts.model, kind, log, ds); err != nil {
+			return err
+		}
+	} else {
+		ev, err := evaluateLog(ctx, g, log, kind, 5, opts.trees, opts.seed, nil, opts.format.json())
+		if err != nil {
+			return err
+		}
+		probs = ev.Probs
+	}
+	res, unit, err := analyseOverlap(log, ds, probs, vals, opts.by, overlap.Options{Width: opts.bin, MinTopShare: opts.minTop, MaxEntropy: opts.maxEntropy})
+	if err != nil {
+		return err
+	}
+	if opts.plot != "" {
+		if err := writePlot(opts.plot, func(w io.Writer, format string) error {
+			return plots.Overlap(w, format, res, unit, plotPriority(vals, ds.Classes))
+		}); err != nil {
+			return err
+		}
+		defer g.note("wrote %s", opts.plot)
+	}
+	return g.writeOutput(opts.output, func(w io.Writer) error {
+		switch opts.format.value {
+		case "json":
+			enc := json.NewEncoder(w)
+			enc.SetIndent("", "  ")
+			return enc.Encode(res)
+		case "csv":
+			return writeOverlapCSV(w, res)
+		}
+		writeOverlapTable(w, res, vals == nil)
+		return nil
+	})
+}
+
+// modelProbs takes each dig's out-of-bag probabilities from the model when
+// the model was trained on it (matched by dig id), and the model's
+// prediction for digs it never saw.
+func modelProbs(path string, kind features.Label, log *features.Log, ds *train.Dataset) ([][]float64, error) {
+	b, err := train.Load(path)
+	if err != nil {
+		return nil, err
+	}
+	if b.Label != kind {
+		return nil, usagef("the model tells %s apart; give --label %s", b.Label, b.Label)
+	}
+	if err := b.Spec.CheckFreqs(log.Freqs); err != nil {
+		return nil, err
+	}
+	oob := map[string][]float64{}
+	for i, id := range b.Training.IDs {
+		oob[id] = b.Training.OutOfBag[i]
+	}
+	// Map the model's classes onto the log's.
+	idx := make([]int, len(b.Classes))
+	for k, c := range b.Classes {
+		idx[k] = -1
+		for j, d := range ds.Classes {
+			if c == d {
+				idx[k] = j
+			}
+		}
+	}
+	probs := make([][]float64, len(log.Digs))
+	var x []float64
+	for i := range log.Digs {
+		p, ok := oob[log.Digs[i].ID]
+		if !ok {
+			x, _, err = b.Spec.Extract(&log.Digs[i], x)
+			if err != nil {
+				return nil, &features.ParseError{File: log.Name, Line: log.Digs[i].Line, Err: err}
+			}
+			p = b.Forest.Predict(x, nil)
+		}
+		probs[i] = make([]float64, len(ds.Classes))
+		for k, v := range p {
+			if idx[k] >= 0 {
+				probs[i][idx[k]] = v
+			}
+		}
+	}
+	return probs, nil
+}
+
+// analyseOverlap picks the axis and runs the analysis.
+func analyseOverlap(log *features.Log, ds *train.Dataset, probs [][]float64, vals *classify.Values, by string, o overlap.Options) (*overlap.Result, string, error) {
+	if by == "" {
+		by = "display_id"
+		if !log.HasDisplayID {
+			by = fmt.Sprintf("phase_%d", log.Freqs[len(log.Freqs)/2])
+		}
+	}
+	axis := make([]float64, len(log.Digs))
+	var unit string
+	switch {
+	case by == "display_id":
+		if !log.HasDisplayID {
+			return nil, "", usagef("--by display_id: the log has no display_id column (or some rows lack it); use --by phase_<hz>")
+		}
+		for i := range log.Digs {
+			axis[i] = log.Digs[i].DisplayID
+		}
+		unit = "display ID"
+	case strings.HasPrefix(by, "phase_"):
+		hz, err := features.ParseHz(strings.TrimPrefix(by, "phase_"))
+		j := -1
+		for k, f := range log.Freqs {
+			if f == hz {
+				j = k
+			}
+		}
+		if err != nil || j < 0 {
+			return nil, "", usagef("--by %s: the log's frequencies are %v Hz", by, log.Freqs)
+		}
+		by = fmt.Sprintf("phase_%d", hz)
+		// The phase as the instrument gave it: the single number a user sees.
+		for i := range log.Digs {
+			axis[i] = log.Digs[i].Readings[j].Phase()
+		}
+		unit = fmt.Sprintf("phase at %d Hz (degrees)", hz)
+	default:
+		return nil, "", usagef("--by: want display_id or phase_<hz>, got %q", by)
+	}
+	if vals == nil {
+		vals = classify.DefaultValues()
+		vals.CostPerDig = math.Inf(1) // no keepers unless the user names them
+	}
+	o.Keepers, o.Hazards = vals.Split(ds.Classes)
+	res, err := overlap.Analyse(by, axis, ds.Classes, ds.Y, probs, o)
+	return res, unit, err
+}
+
+func writeOverlapTable(w io.Writer, r *overlap.Result, noValues bool) {
+	fmt.Fprintf(w, "Ambiguous %s ranges in your %d digs (bins of %g; ambiguous when the top\n", r.By, r.Digs, r.Width)
+	fmt.Fprintf(w, "class has under %.0f%% or the entropy is over %g bit)\n", 100*r.MinTopShare, r.MaxEntropy)
+	if len(r.Ranges) == 0 {
+		fmt.Fprintln(w, "\nNo ambiguous ranges: every bin has a clear top class.")
+	}
+	for _, rg := range r.Ranges {
+		fmt.Fprintf(w, "\n%s to %s: %d digs, %.1f bits", num(rg.From), num(rg.To), rg.Digs, rg.Entropy)
+		if rg.TrashOnly {
+			fmt.Fprint(w, ", only trash collides here: skipping costs nothing")
+		}
+		fmt.Fprintln(w)
+		var cl []string
+		for _, c := range rg.Classes[:min(5, len(rg.Classes))] {
+			cl = append(cl, fmt.Sprintf("%s %.0f%%", c.Class, 100*c.Share))
+		}
+		if len(rg.Classes) > 5 {
+			cl = append(cl, fmt.Sprintf("%d more", len(rg.Classes)-5))
+		}
+		fmt.Fprint(w, wrap(strings.Join(cl, ", "), 78, "  "))
+		for _, h := range rg.Hazards {
+			fmt.Fprint(w, wrap("!! "+h.Words+" (possible ordnance)", 78, "  "))
+		}
+		for _, k := range rg.Keepers {
+			fmt.Fprint(w, wrap(k.Words, 78, "  "))
+		}
+		if res := rg.Resolution; res != nil {
+			line := fmt.Sprintf("spade is right on %.0f%% of these digs where the majority rule is right on %.0f%%; entropy %.1f -> %.1f bits",
+				100*res.ModelAccuracy, 100*res.MajorityAccuracy, res.EntropyBefore, res.EntropyAfter)
+			if res.TrashSkipped != nil {
+				line += fmt.Sprintf("; %.0f%% of the trash here could be skipped keeping 99%% of keepers", 100**res.TrashSkipped)
+			}
+			fmt.Fprint(w, wrap(line, 78, "  "))
+		}
+	}
+	if noValues {
+		fmt.Fprintln(w, "\n(No keepers named: give --values or --keep to see each keeper's chance.)")
+	}
+}
+
+func num(v float64) string { return strconv.FormatFloat(math.Round(v*100)/100, 'f', -1, 64) }
+
+func writeOverlapCSV(w io.Writer, r *overlap.Result) error {
+	cw := csv.NewWriter(w)
+	cw.Write([]string{"from", "to", "digs", "entropy_bits", "ambiguous", "top_class", "top_share", "second_class", "second_share"})
+	for _, b := range r.Bins {
+		rec := []string{num(b.From), num(b.To), strconv.Itoa(b.Digs), ff(b.Entropy), strconv.FormatBool(b.Ambiguous), b.Classes[0].Class, ff(b.Classes[0].Share)}
+		if len(b.Classes) > 1 {
+			rec = append(rec, b.Classes[1].Class, ff(b.Classes[1].Share))
+		} else {
+			rec = append(rec, "", "")
+		}
+		cw.Write(rec)
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+// plotPriority lists hazards, then keepers, for the overlap plot's colours.
+func plotPriority(vals *classify.Values, classes []string) []string {
+	if vals == nil {
+		vals = classify.DefaultValues()
+	}
+	keepers, hazards := vals.Split(classes)
+	return append(hazards, keepers...)
+}
+
+// writePlot draws into a file atomically, in the format its name asks for.
+func writePlot(path string, draw func(io.Writer, string) error) error {
+	format, err := plots.FormatOf(path)
+	if err != nil {
+		return err
+	}
+	return features.WriteFileAtomic(path, func(w io.Writer) error { return draw(w, format) })
+}
