@@ -91,6 +91,7 @@ func newRootCommand(g *globalOptions) *cobra.Command {
 	root.PersistentFlags().BoolVarP(&g.verbose, "verbose", "v", false, "more detail on stderr")
 	root.SetFlagErrorFunc(func(_ *cobra.Command, err error) error { return usageError{err} })
 	root.AddCommand(
+		newDemoCommand(g),
 		newFeaturesCommand(g),
 		newSimulateCommand(g),
 		newResponseCommand(g),

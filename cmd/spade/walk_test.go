@@ -31,7 +31,7 @@ func TestEveryCommandHasHelpAndExample(t *testing.T) {
 		}
 	}
 	walk(root)
-	if len(root.Commands()) < 7 {
+	if len(root.Commands()) < 9 {
 		t.Errorf("only %d commands", len(root.Commands()))
 	}
 }

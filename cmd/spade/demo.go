@@ -1,0 +1,190 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"encoding/csv"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"strings"
+
+	"github.com/spade-detect/spade/classify"
+	"github.com/spade-detect/spade/classify/overlap"
+	"github.com/spade-detect/spade/classify/plots"
+	"github.com/spade-detect/spade/datasets"
+	"github.com/spade-detect/spade/features"
+	"github.com/spade-detect/spade/train"
+	"github.com/spf13/cobra"
+	"github.com/spf13/pflag"
+)
+
+type demoOptions struct {
+	dir   string
+	trees int
+	seed  uint64
+}
+
+func (o *demoOptions) AddFlags(fs *pflag.FlagSet) {
+	fs.StringVarP(&o.dir, "output", "o", "spade-demo", "the `DIR` the demo writes its model and plots into (nothing is written elsewhere)")
+	fs.IntVar(&o.trees, "trees", 200, "trees in the forest")
+	fs.Uint64Var(&o.seed, "seed", 1, "random seed")
+}
+
+func newDemoCommand(g *globalOptions) *cobra.Command {
+	var opts demoOptions
+	cmd := &cobra.Command{
+		Use:   "demo",
+		Short: "Run the whole job on the embedded, invented demo dig history",
+		Long: `demo runs spade end to end on an invented history of 1500 digs from two
+invented sites (Harrowmere Farm, an iron-rich inland field, and Sandle Reach, a
+tidal beach), simulated by spade's own physics models at 5, 10, 20 and 40 kHz:
+it trains a model, prints the cross-validated report next to the single-number
+baseline with the dig-saving figures, shows the ambiguous display-ID ranges,
+classifies twelve example readings (one of them possible ordnance, one unlike
+anything in the history), and writes the model and plots into a folder.`,
+		Example: "  spade demo\n  spade demo -o /tmp/demo --trees 100",
+		Args:    cobra.NoArgs,
+		RunE:    func(cmd *cobra.Command, args []string) error { return runDemo(cmd.Context(), g, opts) },
+	}
+	opts.AddFlags(cmd.Flags())
+	return cmd
+}
+
+func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
+	if opts.trees < 1 {
+		return usagef("--trees must be at least 1")
+	}
+	w := g.stdout
+	log, err := features.ReadLog(bytes.NewReader(datasets.DemoHistory), datasets.DemoHistoryName, features.ReadOptions{Require: features.LabelBoth})
+	if err != nil {
+		return err
+	}
+	vals, err := classify.ParseValues("demo/values.toml", string(datasets.DemoValues))
+	if err != nil {
+		return err
+	}
+	if err := os.MkdirAll(opts.dir, 0o755); err != nil {
+		return fmt.Errorf("demo: %w", err)
+	}
+	spec := features.NewSpec(log.Freqs, log.HasDisplayID)
+	fmt.Fprintf(w, "spade demo: the main job on an invented dig history\n\n")
+	fmt.Fprint(w, wrap(fmt.Sprintf("History: %d digs from two invented sites, Harrowmere Farm (an iron-rich field) and Sandle Reach (a tidal beach), read at %s Hz, each with what came out of the ground. Values: datasets/demo/values.toml.",
+		len(log.Digs), joinInts(log.Freqs)), 78, ""))
+
+	// 1. How good is it, honestly?
+	fmt.Fprintf(w, "\n== 1. How good is it? Cross-validated, next to the single number\n\n")
+	ev, err := evaluateLog(ctx, g, log, features.LabelBoth, 5, opts.trees, opts.seed, vals, false)
+	if err != nil {
+		return err
+	}
+	writeEvaluation(w, ev, string(features.LabelBoth))
+
+	// 2. Which ranges are ambiguous?
+	fmt.Fprintf(w, "\n== 2. Which display IDs could be anything on this ground?\n\n")
+	ds, err := train.FromLog(log, spec, features.LabelBoth)
+	if err != nil {
+		return err
+	}
+	ov, unit, err := analyseOverlap(log, ds, ev.Probs, vals, "display_id", overlap.Options{})
+	if err != nil {
+		return err
+	}
+	writeOverlapTable(w, ov, false)
+
+	// 3. A model, and new readings.
+	fmt.Fprintf(w, "\n== 3. New readings, classified by a model of the whole history\n\n")
+	bar := g.progress(opts.trees, "growing trees", false)
+	bundle, err := train.TrainBundle(ctx, log, spec, train.TrainOptions{Label: features.LabelBoth, Now: today(), Version: version,
+		Forest: train.Options{Trees: opts.trees, Seed: opts.seed, Progress: func(int) { bar.step(1) }}})
+	bar.done()
+	if err != nil {
+		return err
+	}
+	modelPath := filepath.Join(opts.dir, "demo.spade")
+	if err := bundle.Save(modelPath); err != nil {
+		return fmt.Errorf("demo: %w", err)
+	}
+	readings, err := features.ReadLog(bytes.NewReader(datasets.DemoReadings), datasets.DemoReadingsName, features.ReadOptions{})
+	if err != nil {
+		return err
+	}
+	notes := readingNotes(datasets.DemoReadings)
+	c := classify.New(bundle, vals)
+	for i := range readings.Digs {
+		r, err := c.Classify(&readings.Digs[i])
+		if err != nil {
+			return err
+		}
+		writeResultTable(w, r, 4)
+		if n := notes[r.Dig]; n != "" {
+			fmt.Fprint(w, wrap("(what it really was: "+strings.TrimPrefix(n, "simulated: ")+")", 78, "     "))
+		}
+	}
+
+	// 4. Pictures.
+	written := []string{modelPath}
+	phases := make([][]float64, len(log.Digs))
+	for i := range log.Digs {
+		for _, r := range log.Digs[i].Readings {
+			phases[i] = append(phases[i], r.Phase())
+		}
+	}
+	pics := []struct {
+		name string
+		draw func(io.Writer, string) error
+	}{
+		{"overlap.png", func(w io.Writer, f string) error {
+			return plots.Overlap(w, f, ov, unit, plotPriority(vals, ds.Classes))
+		}},
+		{"reliability.png", func(w io.Writer, f string) error { return plots.Reliability(w, f, ev.Model.Reliability) }},
+		{"confusion.png", func(w io.Writer, f string) error { return plots.Confusion(w, f, ds.Classes, ev.Model.Confusion) }},
+		{"spectra.png", func(w io.Writer, f string) error { return plots.Spectra(w, f, log.Freqs, ds.Classes, phases, ds.Y) }},
+	}
+	for _, p := range pics {
+		path := filepath.Join(opts.dir, p.name)
+		if err := writePlot(path, p.draw); err != nil {
+			return fmt.Errorf("demo: %w", err)
+		}
+		written = append(written, path)
+	}
+	fmt.Fprintf(w, "\n== 4. Written into %s\n\n", opts.dir)
+	for _, p := range written {
+		fmt.Fprintf(w, "  %s\n", p)
+	}
+	fmt.Fprintf(w, "\nYour own log next: spade train LOG -o my.spade, then spade classify --model\n")
+	fmt.Fprintf(w, "my.spade READINGS and spade overlap LOG (see the README for the log format).\n")
+	fmt.Fprintf(w, "\nSafety: a possible-ordnance caution means do not dig; mark the spot and report\n")
+	fmt.Fprintf(w, "it to the authorities. Permission, local law and heritage-reporting rules come\n")
+	fmt.Fprintf(w, "first. A probability is never a guarantee.\n")
+	return nil
+}
+
+// readingNotes maps dig id to the demo readings' note column (kept out of
+// the model, read here only to say what each reading really was).
+func readingNotes(data []byte) map[string]string {
+	r := csv.NewReader(bytes.NewReader(data))
+	r.Comment = '#'
+	rows, err := r.ReadAll()
+	notes := map[string]string{}
+	if err != nil || len(rows) == 0 {
+		return notes
+	}
+	dig, note := -1, -1
+	for i, h := range rows[0] {
+		switch h {
+		case "dig":
+			dig = i
+		case "note":
+			note = i
+		}
+	}
+	if dig < 0 || note < 0 {
+		return notes
+	}
+	for _, row := range rows[1:] {
+		notes[row[dig]] = row[note]
+	}
+	return notes
+}
