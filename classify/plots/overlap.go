@@ -190,7 +190,7 @@ func Spectra(w io.Writer, format string, freqs []int, classes []string, phases [
 			if err != nil {
 				return err
 			}
-			poly.Color = color.RGBA{0x56, 0xB4, 0xE9, 0x80}
+			poly.Color = color.NRGBA{0x56, 0xB4, 0xE9, 0x90} // not premultiplied: sky blue at about half opacity
 			poly.LineStyle.Width = 0
 			l, err := plotter.NewLine(med)
 			if err != nil {
