@@ -1,6 +1,7 @@
 package train
 
 import (
+	"bufio"
 	"bytes"
 	"crypto/sha256"
 	"encoding/binary"
@@ -89,35 +90,47 @@ type metadata struct {
 
 // Marshal encodes the bundle. The same bundle gives the same bytes.
 func (b *Bundle) Marshal() ([]byte, error) {
+	var out bytes.Buffer
+	if err := b.Encode(&out); err != nil {
+		return nil, err
+	}
+	return out.Bytes(), nil
+}
+
+// Encode writes the model file to w, hashing as it goes, so that a large
+// model is not copied whole in memory on its way to disc.
+func (b *Bundle) Encode(w io.Writer) error {
 	meta, err := json.Marshal(metadata{Format: FormatVersion, Bundle: b})
 	if err != nil {
-		return nil, fmt.Errorf("train: encoding model: %w", err)
+		return fmt.Errorf("train: encoding model: %w", err)
 	}
-	var payload bytes.Buffer
-	binary.Write(&payload, binary.LittleEndian, uint32(len(meta)))
-	payload.Write(meta)
-	encodeForest(&payload, b.Forest)
-	var out bytes.Buffer
-	out.WriteString(magic)
-	binary.Write(&out, binary.LittleEndian, uint16(FormatVersion))
-	binary.Write(&out, binary.LittleEndian, uint16(0))
-	binary.Write(&out, binary.LittleEndian, uint64(payload.Len()))
-	out.Write(payload.Bytes())
-	sum := sha256.Sum256(out.Bytes())
-	out.Write(sum[:])
-	return out.Bytes(), nil
+	var forest bytes.Buffer
+	encodeForest(&forest, b.Forest)
+	h := sha256.New()
+	hw := io.MultiWriter(w, h)
+	var head [headerLen + 4]byte
+	copy(head[:], magic)
+	binary.LittleEndian.PutUint16(head[8:], FormatVersion)
+	binary.LittleEndian.PutUint64(head[12:], uint64(4+len(meta)+forest.Len()))
+	binary.LittleEndian.PutUint32(head[headerLen:], uint32(len(meta)))
+	for _, part := range [][]byte{head[:], meta, forest.Bytes()} {
+		if _, err := hw.Write(part); err != nil {
+			return err
+		}
+	}
+	_, err = w.Write(h.Sum(nil))
+	return err
 }
 
 // Save writes the bundle atomically: a temporary file in the same folder,
 // then a rename, so an interrupted save never destroys the previous model.
 func (b *Bundle) Save(path string) error {
-	data, err := b.Marshal()
-	if err != nil {
-		return err
-	}
 	return features.WriteFileAtomic(path, func(w io.Writer) error {
-		_, err := w.Write(data)
-		return err
+		bw := bufio.NewWriterSize(w, 1<<20)
+		if err := b.Encode(bw); err != nil {
+			return err
+		}
+		return bw.Flush()
 	})
 }
 
