@@ -86,3 +86,30 @@ func TestBadLogExitsOneWithPosition(t *testing.T) {
 		t.Errorf("exit %d, stderr %q", code, stderr)
 	}
 }
+
+func TestEvaluateWithoutValues(t *testing.T) {
+	// No --values and no --keep: the report has no dig-saving figures, and
+	// nothing breaks (a nil values file once reached a method through an
+	// interface).
+	log, _, _ := spade(t, "", "simulate", "--n", "120", "--seed", "4")
+	out, stderr, code := spade(t, log, "evaluate", "-", "--trees", "10", "--format", "json")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	var ev map[string]any
+	if err := json.Unmarshal([]byte(out), &ev); err != nil {
+		t.Fatal(err)
+	}
+	for _, key := range []string{"model", "baseline", "folds", "seed", "digs", "classes"} {
+		if _, ok := ev[key]; !ok {
+			t.Errorf("JSON lacks %q", key)
+		}
+	}
+	if _, ok := ev["dig_saving"]; ok {
+		t.Error("dig_saving without keepers")
+	}
+	out, _, code = spade(t, log, "evaluate", "-", "--trees", "10", "--keep", "gold,silver,coin")
+	if code != 0 || !strings.Contains(out, "Dig saving") {
+		t.Errorf("--keep: exit %d", code)
+	}
+}

@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"io"
 
+	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/features"
 	"github.com/spade-detect/spade/train"
 	"github.com/spf13/cobra"
@@ -96,9 +97,8 @@ func runEvaluate(ctx context.Context, g *globalOptions, opts evaluateOptions, ar
 }
 
 // evaluateLog cross-validates a labelled log, with a progress bar.
-func evaluateLog(ctx context.Context, g *globalOptions, log *features.Log, kind features.Label, folds, trees int, seed uint64, vals interface {
-	Split([]string) ([]string, []string)
-}, quiet bool) (*train.Evaluation, error) {
+// vals nil means no keepers: no dig-saving figures.
+func evaluateLog(ctx context.Context, g *globalOptions, log *features.Log, kind features.Label, folds, trees int, seed uint64, vals *classify.Values, quiet bool) (*train.Evaluation, error) {
 	spec := features.NewSpec(log.Freqs, log.HasDisplayID)
 	for _, n := range spec.Notes() {
 		g.note("note: %s", n)

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"os"
 	"runtime/debug"
 	"strings"
 
@@ -122,7 +123,18 @@ func wrapArgs(check cobra.PositionalArgs) cobra.PositionalArgs {
 
 // run executes one command line and returns the exit code; main and the
 // tests both call it.
-func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.Writer) int {
+func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.Writer) (code int) {
+	// A bug must still end in one short message, not a stack trace; set
+	// SPADE_DEBUG=1 to see the trace.
+	defer func() {
+		if r := recover(); r != nil {
+			if os.Getenv("SPADE_DEBUG") != "" {
+				panic(r)
+			}
+			fmt.Fprintf(stderr, "spade: internal error: %v (please report it, with the command; SPADE_DEBUG=1 shows where)\n", r)
+			code = exitError
+		}
+	}()
 	g := &globalOptions{stdin: stdin, stdout: stdout, stderr: stderr, isTerminal: stderrIsTerminal(stderr)}
 	root := newRootCommand(g)
 	root.SetArgs(args)
