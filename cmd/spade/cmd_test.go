@@ -5,6 +5,8 @@ import (
 	"context"
 	"encoding/json"
 	"math"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 
@@ -111,5 +113,23 @@ func TestEvaluateWithoutValues(t *testing.T) {
 	out, _, code = spade(t, log, "evaluate", "-", "--trees", "10", "--keep", "gold,silver,coin")
 	if code != 0 || !strings.Contains(out, "Dig saving") {
 		t.Errorf("--keep: exit %d", code)
+	}
+}
+
+func TestInterruptedTrainWritesNothing(t *testing.T) {
+	// Ctrl-C cancels the context: the run stops with exit 1, says so in one
+	// line, and leaves no model and no temporary file behind.
+	dir := t.TempDir()
+	log, _, _ := spade(t, "", "simulate", "--n", "300", "--seed", "2")
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	var out, errb bytes.Buffer
+	model := filepath.Join(dir, "m.spade")
+	code := run(ctx, []string{"train", "-", "-o", model}, strings.NewReader(log), &out, &errb)
+	if code != exitError || errb.String() != "spade: interrupted; nothing was written\n" {
+		t.Errorf("exit %d, stderr %q", code, errb.String())
+	}
+	if entries, _ := os.ReadDir(dir); len(entries) != 0 {
+		t.Errorf("left behind: %v", entries)
 	}
 }
