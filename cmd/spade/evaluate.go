@@ -13,26 +13,22 @@ import (
 )
 
 type evaluateOptions struct {
-	log            logOptions
-	label          labelFlag
-	format         formatFlag
-	values         valuesFlags
-	folds          int
-	trees          int
-	seed           uint64
-	skipUnlabelled bool
-	output         string
+	in     labelledLogFlags
+	format formatFlag
+	values valuesFlags
+	folds  int
+	trees  int
+	seed   uint64
+	output string
 }
 
 func (o *evaluateOptions) AddFlags(fs *pflag.FlagSet) {
-	o.log.AddFlags(fs)
-	o.label.AddFlags(fs)
+	o.in.AddFlags(fs)
 	o.format.AddFlags(fs, "table", "json")
 	o.values.AddFlags(fs)
 	fs.IntVar(&o.folds, "folds", 5, "cross-validation folds")
 	fs.IntVar(&o.trees, "trees", 200, "trees in each fold's forest")
 	fs.Uint64Var(&o.seed, "seed", 1, "random seed for the folds and the forests")
-	fs.BoolVar(&o.skipUnlabelled, "skip-unlabelled", false, "skip rows without material and shape, counting them")
 	fs.StringVarP(&o.output, "output", "o", "-", "write the report to `FILE` (- is standard output)")
 }
 
@@ -64,10 +60,6 @@ func runEvaluate(ctx context.Context, g *globalOptions, opts evaluateOptions, ar
 	if err := opts.format.check(); err != nil {
 		return err
 	}
-	kind, err := opts.label.label()
-	if err != nil {
-		return err
-	}
 	if opts.folds < 2 {
 		return usagef("--folds must be at least 2")
 	}
@@ -75,9 +67,7 @@ func runEvaluate(ctx context.Context, g *globalOptions, opts evaluateOptions, ar
 	if err != nil {
 		return err
 	}
-	ro := opts.log.readOptions()
-	ro.Require, ro.SkipUnlabelled = kind, opts.skipUnlabelled
-	log, err := g.readLog(args[0], ro)
+	log, kind, err := opts.in.read(g, args[0])
 	if err != nil {
 		return err
 	}

@@ -20,25 +20,22 @@ import (
 )
 
 type overlapOptions struct {
-	log            logOptions
-	label          labelFlag
-	format         formatFlag
-	values         valuesFlags
-	model          string
-	by             string
-	bin            float64
-	minTop         float64
-	maxEntropy     float64
-	plot           string
-	seed           uint64
-	trees          int
-	skipUnlabelled bool
-	output         string
+	in         labelledLogFlags
+	format     formatFlag
+	values     valuesFlags
+	model      string
+	by         string
+	bin        float64
+	minTop     float64
+	maxEntropy float64
+	plot       string
+	seed       uint64
+	trees      int
+	output     string
 }
 
 func (o *overlapOptions) AddFlags(fs *pflag.FlagSet) {
-	o.log.AddFlags(fs)
-	o.label.AddFlags(fs)
+	o.in.AddFlags(fs)
 	o.format.AddFlags(fs, "table", "json", "csv")
 	o.values.AddFlags(fs)
 	fs.StringVar(&o.model, "model", "", "use this model's out-of-bag probabilities (digs matched by id) instead of cross-validating")
@@ -49,7 +46,6 @@ func (o *overlapOptions) AddFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.plot, "plot", "", "also draw the class shares per bin into `FILE` (.png or .svg)")
 	fs.Uint64Var(&o.seed, "seed", 1, "random seed for the cross-validation")
 	fs.IntVar(&o.trees, "trees", 200, "trees in each cross-validation forest")
-	fs.BoolVar(&o.skipUnlabelled, "skip-unlabelled", false, "skip rows without material and shape, counting them")
 	fs.StringVarP(&o.output, "output", "o", "-", "write the report to `FILE` (- is standard output)")
 }
 
@@ -89,17 +85,11 @@ func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args
 	if opts.minTop <= 0 || opts.minTop > 1 || opts.maxEntropy <= 0 || opts.bin < 0 {
 		return usagef("need 0 < --min-top-share <= 1, --max-entropy > 0 and --bin >= 0")
 	}
-	kind, err := opts.label.label()
-	if err != nil {
-		return err
-	}
 	vals, err := opts.values.load()
 	if err != nil {
 		return err
 	}
-	ro := opts.log.readOptions()
-	ro.Require, ro.SkipUnlabelled = kind, opts.skipUnlabelled
-	log, err := g.readLog(args[0], ro)
+	log, kind, err := opts.in.read(g, args[0])
 	if err != nil {
 		return err
 	}

@@ -53,3 +53,30 @@ func (g *globalOptions) reportRead(bad []*features.ParseError, ignored []string)
 		g.note("columns kept out of the model: %v", ignored)
 	}
 }
+
+// labelledLogFlags are the flags of the commands that learn from a
+// labelled log (train, evaluate, overlap): the log flags, --label and
+// --skip-unlabelled.
+type labelledLogFlags struct {
+	log            logOptions
+	label          labelFlag
+	skipUnlabelled bool
+}
+
+func (o *labelledLogFlags) AddFlags(fs *pflag.FlagSet) {
+	o.log.AddFlags(fs)
+	o.label.AddFlags(fs)
+	fs.BoolVar(&o.skipUnlabelled, "skip-unlabelled", false, "skip rows without the label asked for, counting them")
+}
+
+// read reads a log in which every kept dig has the label asked for.
+func (o *labelledLogFlags) read(g *globalOptions, name string) (*features.Log, features.Label, error) {
+	kind, err := o.label.label()
+	if err != nil {
+		return nil, "", err
+	}
+	ro := o.log.readOptions()
+	ro.Require, ro.SkipUnlabelled = kind, o.skipUnlabelled
+	log, err := g.readLog(name, ro)
+	return log, kind, err
+}

@@ -12,23 +12,19 @@ import (
 )
 
 type trainOptions struct {
-	log            logOptions
-	label          labelFlag
-	format         formatFlag
-	output         string
-	trees          int
-	seed           uint64
-	skipUnlabelled bool
+	in     labelledLogFlags
+	format formatFlag
+	output string
+	trees  int
+	seed   uint64
 }
 
 func (o *trainOptions) AddFlags(fs *pflag.FlagSet) {
-	o.log.AddFlags(fs)
-	o.label.AddFlags(fs)
+	o.in.AddFlags(fs)
 	o.format.AddFlags(fs, "table", "json")
 	fs.StringVarP(&o.output, "output", "o", "", "write the model to `FILE` (required)")
 	fs.IntVar(&o.trees, "trees", 200, "trees in the forest")
 	fs.Uint64Var(&o.seed, "seed", 1, "random seed; the same seed and log give the same model file")
-	fs.BoolVar(&o.skipUnlabelled, "skip-unlabelled", false, "skip rows without material and shape, counting them")
 }
 
 func newTrainCommand(g *globalOptions) *cobra.Command {
@@ -60,13 +56,7 @@ func runTrain(ctx context.Context, g *globalOptions, opts trainOptions, args []s
 	if err := opts.format.check(); err != nil {
 		return err
 	}
-	kind, err := opts.label.label()
-	if err != nil {
-		return err
-	}
-	ro := opts.log.readOptions()
-	ro.Require, ro.SkipUnlabelled = kind, opts.skipUnlabelled
-	log, err := g.readLog(args[0], ro)
+	log, kind, err := opts.in.read(g, args[0])
 	if err != nil {
 		return err
 	}
