@@ -98,9 +98,17 @@ func runClassify(ctx context.Context, g *globalOptions, opts classifyOptions, ar
 		return err
 	}
 	defer closer()
+	// A count on stderr while results go to a file or a pipe; never over a
+	// table being written to the same screen.
+	toScreen := (opts.output == "-" || opts.output == "") && stderrIsTerminal(g.stdout)
+	bar := g.progress(-1, "classifying", opts.format.json() || toScreen || opts.reading != "")
+	defer bar.done()
 	return g.writeOutput(opts.output, func(w io.Writer) error {
 		out := newResultWriter(w, opts.format.value, bundle.Classes, opts.top)
-		if err := classifyStream(ctx, c, next, name, out.write); err != nil {
+		if err := classifyStream(ctx, c, next, name, func(r *classify.Result) error {
+			bar.step(1)
+			return out.write(r)
+		}); err != nil {
 			return err
 		}
 		return out.close()

@@ -9,7 +9,7 @@ import (
 	"golang.org/x/term"
 )
 
-// stderrIsTerminal reports whether w is a terminal.
+// stderrIsTerminal reports whether w is a terminal (stderr or stdout).
 func stderrIsTerminal(w io.Writer) bool {
 	f, ok := w.(*os.File)
 	return ok && term.IsTerminal(int(f.Fd()))
@@ -28,8 +28,9 @@ type progress struct {
 	bar *progressbar.ProgressBar
 }
 
+// A total of -1 counts without an end (streams of unknown length).
 func (g *globalOptions) progress(total int, what string, machineOutput bool) *progress {
-	if !g.isTerminal || g.quiet || machineOutput || total <= 0 {
+	if !g.isTerminal || g.quiet || machineOutput || total == 0 {
 		return &progress{}
 	}
 	return &progress{bar: progressbar.NewOptions(total,

@@ -58,3 +58,10 @@ func TestVersionAndExitCodes(t *testing.T) {
 func contains(s, sub string) bool {
 	return len(sub) == 0 || (len(s) >= len(sub) && (s[:len(sub)] == sub || contains(s[1:], sub)))
 }
+
+func TestVersionNamesCommit(t *testing.T) {
+	out, _, _ := spade(t, "", "--version")
+	if !contains(out, "(commit ") {
+		t.Errorf("--version %q names no commit", out)
+	}
+}
