@@ -192,3 +192,24 @@ func TestFeatureReusedDownAPath(t *testing.T) {
 		t.Error("tree 0 does not split feature 0 twice down a path")
 	}
 }
+
+func TestFromInstancesFixedOrder(t *testing.T) {
+	// golearn's CSV parser returns attributes in varying order; the
+	// table spade builds from it must be the same every time, or the same
+	// seed would grow a different forest (measured: iris CV accuracy moved
+	// between 0.95 and 0.96 before the order was fixed).
+	first := iris(t)
+	for range 30 {
+		again := iris(t)
+		for f := range first.Cols {
+			if again.Names[f] != first.Names[f] {
+				t.Fatalf("feature %d: %s, then %s", f, first.Names[f], again.Names[f])
+			}
+			for i, v := range first.Cols[f] {
+				if again.Cols[f][i] != v {
+					t.Fatalf("feature %s row %d: %v, then %v", first.Names[f], i, v, again.Cols[f][i])
+				}
+			}
+		}
+	}
+}

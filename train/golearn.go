@@ -2,6 +2,7 @@ package train
 
 import (
 	"fmt"
+	"sort"
 
 	"github.com/sjwhitworth/golearn/base"
 	"github.com/sjwhitworth/golearn/trees"
@@ -42,14 +43,20 @@ func (d *Dataset) Instances() (*base.DenseInstances, []base.Attribute, base.Attr
 
 // FromInstances reads a golearn table with float attributes and one class
 // attribute into a Dataset (for data golearn loads, such as its CSV parser).
+// The features come in the order of their names: golearn's CSV parser hands
+// attributes back in a different order from run to run (measured: iris's
+// columns swap places), and a forest sampling features per split must see
+// them in a fixed order to be reproducible.
 func FromInstances(g base.FixedDataGrid) (*Dataset, error) {
 	classAttrs := g.AllClassAttributes()
 	if len(classAttrs) != 1 {
 		return nil, fmt.Errorf("train: want one class attribute, got %d", len(classAttrs))
 	}
+	attrs := base.NonClassAttributes(g)
+	sort.SliceStable(attrs, func(i, j int) bool { return attrs[i].GetName() < attrs[j].GetName() })
 	var names []string
 	var specs []base.AttributeSpec
-	for _, a := range base.NonClassAttributes(g) {
+	for _, a := range attrs {
 		if _, ok := a.(*base.FloatAttribute); !ok {
 			return nil, fmt.Errorf("train: attribute %s is not numeric", a.GetName())
 		}

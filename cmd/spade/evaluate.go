@@ -4,6 +4,7 @@ import (
 	"context"
 	"encoding/json"
 	"io"
+	"sync"
 
 	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/features"
@@ -105,8 +106,12 @@ func evaluateLog(ctx context.Context, g *globalOptions, log *features.Log, kind 
 		}
 	}
 	bar := g.progress(folds*trees, "cross-validating", quiet)
+	// Called from every tree-growing goroutine at once.
+	var mu sync.Mutex
 	last := 0
 	eo.Progress = func(done, _ int) {
+		mu.Lock()
+		defer mu.Unlock()
 		if done > last {
 			bar.step(done - last)
 			last = done
