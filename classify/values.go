@@ -3,6 +3,7 @@ package classify
 import (
 	"errors"
 	"fmt"
+	"math"
 	"os"
 	"slices"
 	"strings"
@@ -80,11 +81,16 @@ func ParseValues(name, text string) (*Values, error) {
 	if v.HazardThreshold < 0 {
 		v.HazardThreshold = DefaultHazardThreshold
 	}
-	if v.HazardThreshold > 1 || v.CostPerDig < 0 {
-		return nil, fmt.Errorf("%s: %w: need 0 <= hazard_threshold <= 1 and cost_per_dig >= 0", name, ErrValues)
+	// Written so that NaN fails: TOML accepts nan and inf as floats, and a
+	// NaN threshold would silence the ordnance caution for good.
+	if !(v.HazardThreshold >= 0 && v.HazardThreshold <= 1) || !(v.CostPerDig >= 0) || math.IsInf(v.CostPerDig, 0) {
+		return nil, fmt.Errorf("%s: %w: need 0 <= hazard_threshold <= 1 and a finite cost_per_dig >= 0", name, ErrValues)
 	}
 	norm := map[string]float64{}
 	for k, x := range v.Value {
+		if math.IsNaN(x) || math.IsInf(x, 0) {
+			return nil, fmt.Errorf("%s: %w: value of %q must be a finite number, got %v", name, ErrValues, k, x)
+		}
 		norm[strings.ToLower(strings.TrimSpace(k))] = x
 	}
 	v.Value = norm

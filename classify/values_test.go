@@ -39,6 +39,10 @@ func TestValuesErrors(t *testing.T) {
 		{"unknown key", "cost_per_dog = 3\n", `unknown key "cost_per_dog"`},
 		{"threshold", "hazard_threshold = 2\n", "hazard_threshold"},
 		{"type", "cost_per_dig = \"a lot\"\n", "type.toml"},
+		// TOML has nan and inf; a NaN threshold would silence the caution.
+		{"nan threshold", "hazard_threshold = nan\n", "hazard_threshold"},
+		{"inf cost", "cost_per_dig = inf\n", "cost_per_dig"},
+		{"nan value", "[value]\ngold = nan\n", `value of "gold"`},
 	}
 	for _, c := range cases {
 		_, err := ParseValues(c.name+".toml", c.text)

@@ -133,3 +133,16 @@ func TestInterruptedTrainWritesNothing(t *testing.T) {
 		t.Errorf("left behind: %v", entries)
 	}
 }
+
+func TestFloatFlagsMustBeFinite(t *testing.T) {
+	for _, args := range [][]string{
+		{"features", "../../testdata/logs/spreadsheet.csv", "--phase-offset", "nan"},
+		{"response", "--material", "gold", "--diameter-mm", "inf"},
+		{"overlap", "../../testdata/logs/spreadsheet.csv", "--min-top-share", "NaN"},
+	} {
+		_, stderr, code := spade(t, "", args...)
+		if code != exitUsage || !strings.Contains(stderr, "must be a finite number") {
+			t.Errorf("%v: exit %d, %q", args, code, stderr)
+		}
+	}
+}

@@ -5,11 +5,14 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"os"
+	"strconv"
 	"runtime/debug"
 	"strings"
 
 	"github.com/spf13/cobra"
+	"github.com/spf13/pflag"
 )
 
 // version is the release; commit is set at build time with
@@ -91,6 +94,7 @@ func newRootCommand(g *globalOptions) *cobra.Command {
 	root.PersistentFlags().BoolVarP(&g.quiet, "quiet", "q", false, "no progress display and no notes on stderr")
 	root.PersistentFlags().BoolVarP(&g.verbose, "verbose", "v", false, "more detail on stderr")
 	root.SetFlagErrorFunc(func(_ *cobra.Command, err error) error { return usageError{err} })
+	root.PersistentPreRunE = func(cmd *cobra.Command, _ []string) error { return finiteFloatFlags(cmd) }
 	root.AddCommand(
 		newDemoCommand(g),
 		newFeaturesCommand(g),
@@ -106,6 +110,22 @@ func newRootCommand(g *globalOptions) *cobra.Command {
 		c.Args = wrapArgs(c.Args)
 	}
 	return root
+}
+
+// finiteFloatFlags refuses NaN and ±Inf in every float flag of every command
+// at once: pflag parses "nan", and a NaN --phase-offset would turn every
+// feature into NaN, a NaN threshold pass every comparison unnoticed.
+func finiteFloatFlags(cmd *cobra.Command) error {
+	var bad error
+	cmd.Flags().VisitAll(func(f *pflag.Flag) {
+		if f.Value.Type() != "float64" || bad != nil {
+			return
+		}
+		if v, err := strconv.ParseFloat(f.Value.String(), 64); err == nil && (math.IsNaN(v) || math.IsInf(v, 0)) {
+			bad = usagef("--%s must be a finite number, got %s", f.Name, f.Value.String())
+		}
+	})
+	return bad
 }
 
 // wrapArgs turns cobra's argument-count errors into usage errors.
