@@ -7,8 +7,8 @@ import (
 	"io"
 	"math"
 	"os"
-	"strconv"
 	"runtime/debug"
+	"strconv"
 	"strings"
 
 	"github.com/spf13/cobra"
