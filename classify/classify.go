@@ -86,7 +86,7 @@ type Caution struct {
 // Decision is the dig decision by the user's values.
 type Decision struct {
 	ExpectedValue float64 `json:"expected_value"` // Σ p·value - cost per dig
-	Verdict       string  `json:"verdict"`        // "dig", "skip" or "do not dig"
+	Verdict       string  `json:"verdict"`        // "dig", "skip", "unsure" or "do not dig"
 	Note          string  `json:"note,omitempty"`
 }
 
@@ -156,16 +156,20 @@ func (c *Classifier) Classify(d *features.Dig) (*Result, error) {
 		r.Caution = &Caution{Probability: hazardP, Classes: hazards, Message: CautionMessage}
 	}
 	r.Decision.ExpectedValue = ev - c.values.CostPerDig
+	// An unfamiliar reading is never called a dig: the history has nothing
+	// like it, so the model cannot rule out a hazard there either.
 	switch {
 	case r.Caution != nil:
 		r.Decision.Verdict = "do not dig"
+	case r.Novelty.Unfamiliar:
+		r.Decision.Verdict = "unsure"
 	case r.Decision.ExpectedValue > 0:
 		r.Decision.Verdict = "dig"
 	default:
 		r.Decision.Verdict = "skip"
 	}
 	if r.Novelty.Unfamiliar {
-		r.Decision.Note = "unfamiliar: your history has nothing like this reading, so these probabilities are not to be trusted"
+		r.Decision.Note = "unfamiliar: your history has nothing like this reading, so these probabilities are not to be trusted; look before you dig"
 	}
 	return r, nil
 }

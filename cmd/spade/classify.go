@@ -325,6 +325,8 @@ func writeResultTable(w io.Writer, r *classify.Result, top int) {
 func verdictLine(r *classify.Result) string {
 	d := r.Decision
 	switch d.Verdict {
+	case "unsure":
+		return fmt.Sprintf("UNSURE: looks most like %s (%.0f%%), but see below", r.Top.Class, 100*r.Top.Probability)
 	case "dig":
 		return fmt.Sprintf("DIG: %s %.0f%%, expected value %+.1f by your values", r.Top.Class, 100*r.Top.Probability, d.ExpectedValue)
 	default:
