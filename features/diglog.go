@@ -1,7 +1,6 @@
 package features
 
 import (
-	"math"
 	"strings"
 )
 
@@ -92,6 +91,3 @@ type Log struct {
 	Bad          []*ParseError
 	Unlabelled   int // rows skipped under ReadOptions.SkipUnlabelled
 }
-
-// hasValue reports whether v holds a value (not the NaN that marks "absent").
-func hasValue(v float64) bool { return !math.IsNaN(v) }
