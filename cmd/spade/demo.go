@@ -75,7 +75,12 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 
 	// 1. How good is it, honestly?
 	fmt.Fprintf(w, "\n== 1. How good is it? Cross-validated, next to the single number\n\n")
-	ev, err := evaluateLog(ctx, g, log, features.LabelBoth, 5, opts.trees, opts.seed, vals, false)
+	// One extraction serves the evaluation, the overlap and the model.
+	ds, err := train.FromLog(log, spec, features.LabelBoth)
+	if err != nil {
+		return err
+	}
+	ev, err := evaluateDataset(ctx, g, ds, 5, opts.trees, opts.seed, vals, false)
 	if err != nil {
 		return err
 	}
@@ -83,10 +88,6 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 
 	// 2. Which ranges are ambiguous?
 	fmt.Fprintf(w, "\n== 2. Which display IDs could be anything on this ground?\n\n")
-	ds, err := train.FromLog(log, spec, features.LabelBoth)
-	if err != nil {
-		return err
-	}
 	ov, unit, err := analyseOverlap(log, ds, ev.Probs, vals, "display_id", overlap.Options{})
 	if err != nil {
 		return err
@@ -96,7 +97,7 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 	// 3. A model, and new readings.
 	fmt.Fprintf(w, "\n== 3. New readings, classified by a model of the whole history\n\n")
 	bar := g.progress(opts.trees, "growing trees", false)
-	bundle, err := train.TrainBundle(ctx, log, spec, train.TrainOptions{Label: features.LabelBoth, Now: today(), Version: version,
+	bundle, err := train.TrainDataset(ctx, ds, spec, train.TrainOptions{Label: features.LabelBoth, Now: today(), Version: version,
 		Forest: train.Options{Trees: opts.trees, Seed: opts.seed, Progress: func(int) { bar.step(1) }}})
 	bar.done()
 	if err != nil {

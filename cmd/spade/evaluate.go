@@ -72,7 +72,13 @@ func runEvaluate(ctx context.Context, g *globalOptions, opts evaluateOptions, ar
 	if err != nil {
 		return err
 	}
-	ev, err := evaluateLog(ctx, g, log, kind, opts.folds, opts.trees, opts.seed, vals, opts.format.json())
+	spec := features.NewSpec(log.Freqs, log.HasDisplayID)
+	g.specNotes(spec)
+	ds, err := train.FromLog(log, spec, kind)
+	if err != nil {
+		return err
+	}
+	ev, err := evaluateDataset(ctx, g, ds, opts.folds, opts.trees, opts.seed, vals, opts.format.json())
 	if err != nil {
 		return err
 	}
@@ -87,17 +93,16 @@ func runEvaluate(ctx context.Context, g *globalOptions, opts evaluateOptions, ar
 	})
 }
 
-// evaluateLog cross-validates a labelled log, with a progress bar.
-// vals nil means no keepers: no dig-saving figures.
-func evaluateLog(ctx context.Context, g *globalOptions, log *features.Log, kind features.Label, folds, trees int, seed uint64, vals *classify.Values, quiet bool) (*train.Evaluation, error) {
-	spec := features.NewSpec(log.Freqs, log.HasDisplayID)
+// specNotes says once what the log's feature spec leaves out.
+func (g *globalOptions) specNotes(spec *features.FeatureSpec) {
 	for _, n := range spec.Notes() {
 		g.note("note: %s", n)
 	}
-	ds, err := train.FromLog(log, spec, kind)
-	if err != nil {
-		return nil, err
-	}
+}
+
+// evaluateDataset cross-validates an extracted table, with a progress bar.
+// vals nil means no keepers: no dig-saving figures.
+func evaluateDataset(ctx context.Context, g *globalOptions, ds *train.Dataset, folds, trees int, seed uint64, vals *classify.Values, quiet bool) (*train.Evaluation, error) {
 	eo := train.EvalOptions{Folds: folds, Seed: seed, Forest: train.Options{Trees: trees}}
 	if vals != nil {
 		eo.Keepers, eo.Hazards = vals.Split(ds.Classes)

@@ -43,8 +43,6 @@ func runFeatures(_ context.Context, g *globalOptions, opts featuresOptions, args
 		return err
 	}
 	spec := features.NewSpec(log.Freqs, log.HasDisplayID)
-	for _, n := range spec.Notes() {
-		g.note("note: %s", n)
-	}
+	g.specNotes(spec)
 	return g.writeOutput(opts.output, func(w io.Writer) error { return features.WriteFeatureTable(w, log, spec) })
 }

@@ -104,7 +104,8 @@ func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args
 			return err
 		}
 	} else {
-		ev, err := evaluateLog(ctx, g, log, kind, 5, opts.trees, opts.seed, nil, opts.format.json())
+		g.specNotes(spec)
+		ev, err := evaluateDataset(ctx, g, ds, 5, opts.trees, opts.seed, nil, opts.format.json())
 		if err != nil {
 			return err
 		}

@@ -61,9 +61,7 @@ func runTrain(ctx context.Context, g *globalOptions, opts trainOptions, args []s
 		return err
 	}
 	spec := features.NewSpec(log.Freqs, log.HasDisplayID)
-	for _, n := range spec.Notes() {
-		g.note("note: %s", n)
-	}
+	g.specNotes(spec)
 	bar := g.progress(opts.trees, "growing trees", opts.format.json())
 	bundle, err := train.TrainBundle(ctx, log, spec, train.TrainOptions{
 		Label: kind, Now: today(), Version: version, Skipped: len(log.Bad) + log.Unlabelled,
