@@ -45,24 +45,9 @@ func WriteLog(w io.Writer, opts Options) error {
 	if err != nil {
 		return err
 	}
-	freqs := opts.Freqs
-	if len(freqs) == 0 {
-		freqs = DefaultFreqs
-	}
-	fmt.Fprintf(w, "# simulated by spade (scenario %s, seed %d): invented sites and finds\n", scenarioName(opts), opts.Seed)
-	return features.WriteCSV(w, sortedFreqs(freqs), digs, instrumentWrite)
-}
-
-func scenarioName(o Options) string {
-	if o.Scenario == "" {
-		return "demo"
-	}
-	return o.Scenario
-}
-
-func sortedFreqs(f []int) []int {
-	_, freqs, _, _ := Options{Freqs: f}.resolve()
-	return freqs
+	sc, freqs, _, _ := opts.resolve() // Simulate has checked them
+	fmt.Fprintf(w, "# simulated by spade (scenario %s, seed %d): invented sites and finds\n", sc.Name, opts.Seed)
+	return features.WriteCSV(w, freqs, digs, instrumentWrite)
 }
 
 // GenerateDemoHistory makes the embedded history's bytes.

@@ -36,7 +36,7 @@ func newCSVSource(r io.Reader, rd *Reader) (*csvSource, error) {
 		return nil, err
 	}
 	src.s = s
-	rd.freqs, rd.ignored, rd.groundCol = s.freqs, s.ignored, s.ground
+	rd.freqs, rd.ignored = s.freqs, s.ignored
 	_, rd.displayCol = s.index[colDisplayID]
 	return src, nil
 }

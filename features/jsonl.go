@@ -136,7 +136,6 @@ func (j *jsonlSource) row(b []byte) (Dig, error) {
 		if !slices.Equal(gf, freqs) {
 			return d, perr("ground", cause(ErrFreqSet, "the ground reading has %v Hz, the target's %v Hz", gf, freqs))
 		}
-		j.rd.groundCol = true
 	}
 	return d, nil
 }

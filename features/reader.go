@@ -46,7 +46,6 @@ type Reader struct {
 
 	freqs       []int
 	displayCol  bool
-	groundCol   bool
 	ignored     []string
 	seen        map[uint64]int
 	rows        int

@@ -30,10 +30,6 @@ func (r Reading) Phase() float64 {
 // Amp is hypot(X, R).
 func (r Reading) Amp() float64 { return math.Hypot(r.X, r.R) }
 
-// Complex is the response as X - iR, the sign convention of the forward
-// models (a lossy target has a negative imaginary part).
-func (r Reading) Complex() complex128 { return complex(r.X, -r.R) }
-
 // Rotate turns the reading by -deg degrees of phase: the reading of an
 // instrument whose zero sits at deg, brought to spade's convention.
 func (r Reading) Rotate(deg float64) Reading {
