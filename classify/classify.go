@@ -2,7 +2,9 @@ package classify
 
 import (
 	"encoding/json"
+	"errors"
 	"fmt"
+	"math"
 	"slices"
 	"sort"
 	"strconv"
@@ -30,6 +32,7 @@ type Classifier struct {
 	vec, std  []float64
 	probs     []float64
 	nb        []Neighbour
+	screenBuf []float64
 }
 
 // New prepares a classifier: the whitened training space and the training
@@ -57,10 +60,25 @@ func (c *Classifier) Clone() *Classifier {
 // to read once: above all, when the model cannot warn of ordnance.
 func (c *Classifier) Warnings() []string {
 	var w []string
-	if !slices.Contains(c.hazard, true) {
-		w = append(w, fmt.Sprintf("none of this model's classes is hazardous by the values (%v), so it cannot warn of possible ordnance: a reading may still be one", c.values.Hazards))
+	if !c.HazardAvailable() {
+		w = append(w, UnavailableNote(c.bundle, c.values))
 	}
 	return w
+}
+
+// HazardAvailable reports whether the model can warn of ordnance at all:
+// it has the ordnance screen, or hazardous classes of the history's own.
+func (c *Classifier) HazardAvailable() bool {
+	return c.bundle.Screen != nil || slices.Contains(c.hazard, true)
+}
+
+// UnavailableNote says why a model cannot warn of ordnance.
+func UnavailableNote(b *train.Bundle, v *Values) string {
+	why := "it was made before spade had an ordnance screen; train it again with this spade"
+	if b.Summary.NoScreen != "" {
+		why = "it has no ordnance screen (" + b.Summary.NoScreen + ")"
+	}
+	return fmt.Sprintf("HAZARD CHECK UNAVAILABLE: this model cannot warn of possible ordnance: %s, and none of its classes is hazardous by the values (%s). A reading may still be ordnance", why, train.HazardNames(v.Hazards))
 }
 
 // ClassP is a class with its probability.
@@ -78,10 +96,53 @@ type Novelty struct {
 
 // Caution is the hazard warning. It comes first wherever it appears.
 type Caution struct {
-	Probability float64  `json:"probability"` // total over hazardous classes
-	Classes     []string `json:"classes"`
+	Tier        string   `json:"tier"`        // TierLikely or TierPossible
+	Probability float64  `json:"probability"` // Hazard.Probability
+	Classes     []string `json:"classes"`     // the history's hazardous classes with a share, if any
 	Message     string   `json:"message"`
 }
+
+// The tiers of the hazard check.
+const (
+	TierNone     = "none"
+	TierPossible = "cannot be ruled out"
+	TierLikely   = "likely ordnance"
+)
+
+// The two cautions, one per tier.
+const (
+	CautionLikely   = "LIKELY ORDNANCE: do not dig, do not touch. Mark the spot and report it to the police or the authorities."
+	CautionPossible = "ORDNANCE CANNOT BE RULED OUT: do not dig until you have looked into the site's history and the signal. When in doubt, report it to the police or the authorities."
+)
+
+// CautionMessage is the caution of the higher tier.
+const CautionMessage = CautionLikely
+
+// HazardCheck is the ordnance check of one reading. It stands in every
+// result, so that "no caution" is never read as "safe" where the check could
+// not be made.
+type HazardCheck struct {
+	Available bool   `json:"available"`
+	Tier      string `json:"tier"` // TierNone, TierPossible or TierLikely
+	// Probability is the larger of History and Screen.
+	Probability float64 `json:"probability"`
+	// History is the history's own hazardous classes' total probability.
+	History float64 `json:"history"`
+	// Screen is the ordnance screen's score (see train.Screen): an alarm
+	// level from the munitions library, not the chance of a shell.
+	Screen     float64 `json:"screen"`
+	ScreenUsed string  `json:"screen_used,omitempty"` // "depth", "phase and amplitude", or empty without a screen
+	Note       string  `json:"note,omitempty"`
+}
+
+// The verdicts.
+const (
+	VerdictDig      = "dig"
+	VerdictSkip     = "skip"
+	VerdictUnsure   = "unsure"
+	VerdictDoNotDig = "do not dig"
+	VerdictNone     = "no verdict"
+)
 
 // Decision is the dig decision by the user's values.
 type Decision struct {
@@ -101,12 +162,14 @@ type Result struct {
 	Shapes        []ClassP           `json:"shapes"`
 	Novelty       Novelty            `json:"novelty"`
 	Caution       *Caution           `json:"caution"`
+	Hazard        HazardCheck        `json:"hazard_check"`
 	Neighbours    []Neighbour        `json:"neighbours"`
 	Decision      Decision           `json:"decision"`
 }
 
-// CautionMessage is said for every reading that could be ordnance.
-const CautionMessage = "POSSIBLE ORDNANCE: do not dig. Mark the spot and report it to the authorities."
+// ErrNotFinite is the cause when a reading's features are not all finite
+// numbers: nothing sound can be said of it, so it is refused.
+var ErrNotFinite = errors.New("the reading gives a feature that is not a finite number")
 
 // Classify answers for one reading. The reading's frequencies must be the
 // model's (a *features.FreqMismatchError otherwise).
@@ -116,6 +179,11 @@ func (c *Classifier) Classify(d *features.Dig) (*Result, error) {
 	c.vec, _, err = b.Spec.Extract(d, c.vec)
 	if err != nil {
 		return nil, err
+	}
+	for i, v := range c.vec {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return nil, fmt.Errorf("%w: %s is %v (a phase or amplitude out of range?)", ErrNotFinite, b.Spec.Names[i], v)
+		}
 	}
 	c.probs = b.Forest.Predict(c.vec, c.probs)
 	c.std = c.space.standardise(c.vec, c.std)
@@ -140,38 +208,101 @@ func (c *Classifier) Classify(d *features.Dig) (*Result, error) {
 	r.Top = r.Ranked[0]
 	r.Materials, r.Shapes = marginals(b.Classes, c.probs)
 
-	score := meanDistance(c.nb)
-	r.Novelty = Novelty{Score: score, Percentile: percentile(c.reference, score)}
-	r.Novelty.Unfamiliar = r.Novelty.Percentile > UnfamiliarPercentile
+	r.Novelty = c.novelty(meanDistance(c.nb))
 	for _, n := range c.nb[:min(Neighbours, len(c.nb))] {
 		n.Dig = b.Training.IDs[n.index]
 		n.Class = b.Classes[b.Training.Y[n.index]]
 		n.Date = b.Training.Dates[n.index]
 		r.Neighbours = append(r.Neighbours, n)
 	}
-
-	// The caution: the hazardous classes' total probability, so that a
-	// risk split over several hazard classes is not missed.
-	if hazardP >= c.values.HazardThreshold && len(hazards) > 0 {
-		r.Caution = &Caution{Probability: hazardP, Classes: hazards, Message: CautionMessage}
+	topHazard := false
+	for k, cl := range b.Classes {
+		if cl == r.Top.Class {
+			topHazard = c.hazard[k]
+		}
+	}
+	r.Hazard = c.hazardCheck(d, hazardP, topHazard)
+	if r.Hazard.Tier != TierNone {
+		msg := CautionPossible
+		if r.Hazard.Tier == TierLikely {
+			msg = CautionLikely
+		}
+		r.Caution = &Caution{Tier: r.Hazard.Tier, Probability: r.Hazard.Probability, Classes: hazards, Message: msg}
 	}
 	r.Decision.ExpectedValue = ev - c.values.CostPerDig
-	// An unfamiliar reading is never called a dig: the history has nothing
-	// like it, so the model cannot rule out a hazard there either.
+	// Fail safe: a caution is always "do not dig", and an unfamiliar
+	// reading is never called a dig: the history has nothing like it, so
+	// the model cannot rule out a hazard there either.
 	switch {
 	case r.Caution != nil:
-		r.Decision.Verdict = "do not dig"
+		r.Decision.Verdict = VerdictDoNotDig
 	case r.Novelty.Unfamiliar:
-		r.Decision.Verdict = "unsure"
+		r.Decision.Verdict = VerdictUnsure
 	case r.Decision.ExpectedValue > 0:
-		r.Decision.Verdict = "dig"
+		r.Decision.Verdict = VerdictDig
 	default:
-		r.Decision.Verdict = "skip"
+		r.Decision.Verdict = VerdictSkip
 	}
 	if r.Novelty.Unfamiliar {
-		r.Decision.Note = "unfamiliar: your history has nothing like this reading, so these probabilities are not to be trusted; look before you dig"
+		r.Decision.Note = "unfamiliar: your history has nothing like this reading, so these probabilities are not to be trusted; treat it as possibly hazardous and look before you dig"
 	}
 	return r, nil
+}
+
+// novelty places a score among the training digs' own. With too few digs
+// to compare (a history of one dig has no neighbour to leave out) every
+// reading is unfamiliar: fail safe, and never NaN.
+func (c *Classifier) novelty(score float64) Novelty {
+	if len(c.reference) == 0 || math.IsNaN(score) || math.IsInf(score, 0) {
+		return Novelty{Score: 0, Percentile: 100, Unfamiliar: true}
+	}
+	n := Novelty{Score: score, Percentile: percentile(c.reference, score)}
+	n.Unfamiliar = n.Percentile > UnfamiliarPercentile
+	return n
+}
+
+// hazardCheck decides the tier from the history's own hazardous classes
+// (their total probability hazardP, against the values' threshold; a
+// majority is "likely") and from the ordnance screen (its own tiers). A
+// hazardous top class is always at least "cannot be ruled out". Anything
+// not a number counts as a hazard: the check fails safe.
+func (c *Classifier) hazardCheck(d *features.Dig, hazardP float64, topHazard bool) HazardCheck {
+	h := HazardCheck{Available: c.HazardAvailable(), Tier: TierNone, History: hazardP}
+	tier := 0
+	switch {
+	case math.IsNaN(hazardP) || hazardP >= 0.5:
+		tier = 2
+	case topHazard || hazardP >= c.values.HazardThreshold:
+		tier = 1
+	}
+	if s := c.bundle.Screen; s != nil {
+		amp, size := train.ScreenExtras(d)
+		var sr train.ScreenResult
+		sr, c.screenBuf = s.Score(c.vec, amp, size, c.screenBuf)
+		h.Screen = sr.Score
+		h.ScreenUsed = "phase and amplitude"
+		if sr.UsedDepth {
+			h.ScreenUsed = "depth"
+		}
+		if math.IsNaN(sr.Score) {
+			sr.Tier, h.Screen = 2, 1
+		}
+		tier = max(tier, sr.Tier)
+	}
+	if math.IsNaN(h.History) {
+		h.History = 1
+	}
+	h.Probability = math.Max(h.History, h.Screen)
+	switch tier {
+	case 2:
+		h.Tier = TierLikely
+	case 1:
+		h.Tier = TierPossible
+	}
+	if !h.Available {
+		h.Note = UnavailableNote(c.bundle, c.values)
+	}
+	return h
 }
 
 // marginals sums the joint probabilities per material and per shape.

@@ -7,6 +7,7 @@ import (
 	"math"
 	"slices"
 	"sort"
+	"strings"
 	"sync"
 	"testing"
 	"time"
@@ -151,47 +152,76 @@ func TestWhitenedDistanceIsMahalanobis(t *testing.T) {
 }
 
 func TestCautionWhenAndOnlyWhen(t *testing.T) {
-	b, _ := demoModel(t)
+	full, _ := demoModel(t)
+	// The history's own hazard class alone: the model without its screen.
+	noScreen := *full
+	noScreen.Screen = nil
+	b := &noScreen
 	hazard := slices.Index(b.Classes, "steel/ordnance")
-	for _, threshold := range []float64{0, 0.01, 0.2, 1} {
+	for _, threshold := range []float64{0.01, 0.2, 0.5} {
 		v := DefaultValues()
 		v.HazardThreshold = threshold
 		c := New(b, v)
 		for _, d := range demoReadings(t) {
 			r, _ := c.Classify(&d)
 			p := r.Probabilities[b.Classes[hazard]]
-			want := p >= threshold && p > 0
-			if (r.Caution != nil) != want {
-				t.Errorf("threshold %v, %s: hazard p %v, caution %v", threshold, d.ID, p, r.Caution != nil)
+			top := r.Top.Class == b.Classes[hazard]
+			want := TierNone
+			switch {
+			case p >= 0.5:
+				want = TierLikely
+			case p >= threshold || top:
+				want = TierPossible
 			}
-			if r.Caution != nil && (r.Decision.Verdict != "do not dig" || r.Caution.Message != CautionMessage) {
-				t.Errorf("%s: caution but verdict %q", d.ID, r.Decision.Verdict)
+			if r.Hazard.Tier != want || (r.Caution != nil) != (want != TierNone) {
+				t.Errorf("threshold %v, %s: hazard p %v, tier %q, want %q", threshold, d.ID, p, r.Hazard.Tier, want)
 			}
-			if r.Caution == nil && r.Decision.Verdict == "do not dig" {
+			if r.Caution != nil && (r.Decision.Verdict != VerdictDoNotDig || r.Caution.Tier != r.Hazard.Tier) {
+				t.Errorf("%s: caution %q but verdict %q", d.ID, r.Caution.Tier, r.Decision.Verdict)
+			}
+			if r.Caution == nil && r.Decision.Verdict == VerdictDoNotDig {
 				t.Errorf("%s: do not dig without a caution", d.ID)
+			}
+			if !r.Hazard.Available || r.Hazard.Probability != p {
+				t.Errorf("%s: hazard check %+v, want available with probability %v", d.ID, r.Hazard, p)
 			}
 		}
 	}
-	// The simulated projectile (R05) raises the caution at the default 1 %.
-	c := New(b, nil)
-	for _, d := range demoReadings(t) {
-		if d.ID == "R05" {
-			if r, _ := c.Classify(&d); r.Caution == nil {
-				t.Error("R05, a simulated projectile, gets no caution")
+	// The simulated projectile (R05) is likely ordnance at the default 1 %,
+	// by the history and by the screen.
+	for _, m := range []*train.Bundle{b, full} {
+		c := New(m, nil)
+		for _, d := range demoReadings(t) {
+			if d.ID == "R05" {
+				if r, _ := c.Classify(&d); r.Caution == nil || r.Caution.Tier != TierLikely || r.Caution.Message != CautionLikely {
+					t.Errorf("R05, a simulated projectile, gets caution %+v", r.Caution)
+				}
 			}
 		}
 	}
 }
 
-func TestNoHazardClassWarns(t *testing.T) {
-	b, _ := demoModel(t)
+func TestHazardCheckAvailability(t *testing.T) {
+	full, _ := demoModel(t)
 	v := DefaultValues()
 	v.Hazards = []string{"landmine"}
-	if w := New(b, v).Warnings(); len(w) != 1 {
-		t.Errorf("warnings %q", w)
+	// The screen warns whatever the classes are called.
+	if w := New(full, v).Warnings(); len(w) != 0 {
+		t.Errorf("with a screen: warnings %q", w)
 	}
-	if w := New(b, nil).Warnings(); len(w) != 0 {
-		t.Errorf("warnings %q", w)
+	noScreen := *full
+	noScreen.Screen = nil
+	c := New(&noScreen, v)
+	if w := c.Warnings(); len(w) != 1 || !strings.HasPrefix(w[0], "HAZARD CHECK UNAVAILABLE") {
+		t.Errorf("no screen, no hazard class: warnings %q", w)
+	}
+	d := demoReadings(t)[0]
+	r, _ := c.Classify(&d)
+	if r.Hazard.Available || r.Hazard.Note == "" {
+		t.Errorf("no screen, no hazard class: hazard check %+v", r.Hazard)
+	}
+	if w := New(&noScreen, nil).Warnings(); len(w) != 0 {
+		t.Errorf("hazard class, no screen: warnings %q", w)
 	}
 }
 

@@ -42,6 +42,19 @@ func DefaultValues() *Values {
 	return &Values{CostPerDig: 1, HazardThreshold: DefaultHazardThreshold, Hazards: []string{"ordnance"}, Value: map[string]float64{}}
 }
 
+// MaxHazardThreshold is the largest hazard_threshold allowed: above a half
+// a reading whose likeliest class is a hazard could go without a caution.
+const MaxHazardThreshold = 0.5
+
+// CheckHazardThreshold refuses a threshold outside (0, 0.5]. Written so
+// that NaN fails: a NaN threshold would silence the caution for good.
+func CheckHazardThreshold(t float64) error {
+	if t > 0 && t <= MaxHazardThreshold {
+		return nil
+	}
+	return fmt.Errorf("hazard_threshold is a fraction: 0.01 means 1 %%, and it must be above 0 and at most %v; got %v", MaxHazardThreshold, t)
+}
+
 // ErrValues is the cause of every values-file error.
 var ErrValues = errors.New("bad values file")
 
@@ -59,7 +72,6 @@ func LoadValues(path string) (*Values, error) {
 func ParseValues(name, text string) (*Values, error) {
 	v := DefaultValues()
 	v.CostPerDig = 0
-	v.HazardThreshold = -1
 	v.Hazards = nil
 	md, err := toml.Decode(text, v)
 	if err != nil {
@@ -78,13 +90,15 @@ func ParseValues(name, text string) (*Values, error) {
 	if !md.IsDefined("hazards") {
 		v.Hazards = []string{"ordnance"}
 	}
-	if v.HazardThreshold < 0 {
+	if !md.IsDefined("hazard_threshold") {
 		v.HazardThreshold = DefaultHazardThreshold
 	}
-	// Written so that NaN fails: TOML accepts nan and inf as floats, and a
-	// NaN threshold would silence the ordnance caution for good.
-	if !(v.HazardThreshold >= 0 && v.HazardThreshold <= 1) || !(v.CostPerDig >= 0) || math.IsInf(v.CostPerDig, 0) {
-		return nil, fmt.Errorf("%s: %w: need 0 <= hazard_threshold <= 1 and a finite cost_per_dig >= 0", name, ErrValues)
+	if err := CheckHazardThreshold(v.HazardThreshold); err != nil {
+		return nil, fmt.Errorf("%s: %w: %v", name, ErrValues, err)
+	}
+	// Written so that NaN fails: TOML accepts nan and inf as floats.
+	if !(v.CostPerDig >= 0) || math.IsInf(v.CostPerDig, 0) {
+		return nil, fmt.Errorf("%s: %w: cost_per_dig must be a finite number >= 0, got %v", name, ErrValues, v.CostPerDig)
 	}
 	norm := map[string]float64{}
 	for k, x := range v.Value {

@@ -67,6 +67,11 @@ type Options struct {
 	Freqs       []int // default DefaultFreqs
 	Unlabelled  bool  // leave material and shape empty
 	Measurement *Measurement
+	// ExcludeHazards leaves the hazard kinds out of every site's mix: a
+	// history as almost everyone's is, with no ordnance in it.
+	ExcludeHazards bool
+	// Kinds, when set, keeps only these classes of the sites' mixes.
+	Kinds []string
 }
 
 // Truth is what a simulated dig really was.
@@ -98,7 +103,14 @@ func Simulate(opts Options) ([]features.Dig, []Truth, error) {
 		site := sites[pick(rng, sc.Share)]
 		shares := make([]float64, len(Catalogue))
 		for i := range Catalogue {
-			shares[i] = site.Mix[Catalogue[i].Class()]
+			k := &Catalogue[i]
+			if (opts.ExcludeHazards && k.Hazard) || (opts.Kinds != nil && !slices.Contains(opts.Kinds, k.Class())) {
+				continue
+			}
+			shares[i] = site.Mix[k.Class()]
+		}
+		if slices.Max(shares) == 0 {
+			continue // none of the kinds asked for lies at this site
 		}
 		kind := &Catalogue[pick(rng, shares)]
 		resp := kind.draw(rng)
@@ -142,6 +154,22 @@ func (o Options) resolve() (*Scenario, []int, *Measurement, error) {
 	slices.Sort(freqs)
 	if len(slices.Compact(slices.Clone(freqs))) != len(freqs) {
 		return nil, nil, nil, fmt.Errorf("datasets: a frequency is listed twice in %v", freqs)
+	}
+	if o.Kinds != nil {
+		total := 0
+		for _, k := range o.Kinds {
+			if KindOf(k) == nil {
+				return nil, nil, nil, fmt.Errorf("datasets: no kind %q in the catalogue", k)
+			}
+			for _, n := range sc.Sites {
+				if SiteNamed(n).Mix[k] > 0 {
+					total++
+				}
+			}
+		}
+		if total == 0 {
+			return nil, nil, nil, fmt.Errorf("datasets: none of the kinds %v is found at the scenario's sites", o.Kinds)
+		}
 	}
 	if o.N < 0 {
 		return nil, nil, nil, fmt.Errorf("datasets: --n must be >= 0, got %d", o.N)

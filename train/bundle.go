@@ -20,6 +20,7 @@ import (
 //
 //	magic "SPADEMDL" | version uint16 | reserved uint16 | payload length uint64
 //	payload: metadata length uint32 | metadata (JSON) | forest (binary)
+//	         | screen forest count (uvarint) | screen forests (binary)
 //	SHA-256 of everything before it
 //
 // all integers little-endian. The forest is stored by us, not with golearn's
@@ -29,9 +30,13 @@ import (
 // leaf is 1 and its non-zero class counts as (class, count) uvarint pairs.
 // Inner nodes' class counts are the sums of their children's, so golearn's
 // ClassDist at every node is rebuilt on load.
+//
+// Format 2 added the ordnance screen (its metadata under "screen", its
+// forests after the history's: the plain one, then the depth one when
+// there is one). Format 1 files still load, without a screen.
 const (
 	magic         = "SPADEMDL"
-	FormatVersion = 1
+	FormatVersion = 2
 	headerLen     = 8 + 2 + 2 + 8
 	maxModelBytes = 2 << 30
 	maxTreeDepth  = 4096
@@ -56,6 +61,8 @@ type Summary struct {
 	OutOfBag     Metrics            `json:"out_of_bag"`
 	Importance   map[string]float64 `json:"importance"`
 	Skipped      int                `json:"skipped_rows"`
+	// NoScreen says why the model has no ordnance screen; empty when it has.
+	NoScreen string `json:"no_screen,omitempty"`
 }
 
 // Training holds the training digs' feature vectors for nearest-neighbour
@@ -78,7 +85,12 @@ type Bundle struct {
 	Summary  Summary               `json:"summary"`
 	Baseline *Baseline             `json:"baseline"`
 	Training Training              `json:"training"`
-	Forest   *Forest               `json:"-"`
+	// Screen is the ordnance screen; nil in a format 1 model, or where the
+	// history could not carry one.
+	Screen *Screen `json:"screen,omitempty"`
+	Forest *Forest `json:"-"`
+	// Format is the format version the bundle was read from.
+	Format int `json:"-"`
 }
 
 // metadata is the JSON part, with the format version repeated for readers
@@ -106,6 +118,12 @@ func (b *Bundle) Encode(w io.Writer) error {
 	}
 	var forest bytes.Buffer
 	encodeForest(&forest, b.Forest)
+	screens := b.Screen.forests()
+	var buf [binary.MaxVarintLen64]byte
+	forest.Write(buf[:binary.PutUvarint(buf[:], uint64(len(screens)))])
+	for _, f := range screens {
+		encodeForest(&forest, f)
+	}
 	h := sha256.New()
 	hw := io.MultiWriter(w, h)
 	var head [headerLen + 4]byte
@@ -167,8 +185,8 @@ func Unmarshal(data []byte) (b *Bundle, err error) {
 		return nil, fmt.Errorf("%w: truncated (%d bytes)", ErrCorrupt, len(data))
 	}
 	version := binary.LittleEndian.Uint16(data[8:])
-	if version != FormatVersion {
-		return nil, fmt.Errorf("%w: the file has format %d, this spade reads format %d", ErrVersion, version, FormatVersion)
+	if version < 1 || version > FormatVersion {
+		return nil, fmt.Errorf("%w: the file has format %d, this spade reads formats 1 to %d; train the model again with this spade", ErrVersion, version, FormatVersion)
 	}
 	plen := binary.LittleEndian.Uint64(data[12:])
 	if plen != uint64(len(data)-headerLen-sha256.Size) {
@@ -186,19 +204,31 @@ func Unmarshal(data []byte) (b *Bundle, err error) {
 	if uint64(mlen) > uint64(len(payload)-4) {
 		return nil, fmt.Errorf("%w: metadata length %d past the end", ErrCorrupt, mlen)
 	}
-	b = &Bundle{}
+	b = &Bundle{Format: int(version)}
 	meta := metadata{Bundle: b}
 	dec := json.NewDecoder(bytes.NewReader(payload[4 : 4+mlen]))
 	dec.DisallowUnknownFields()
 	if err := dec.Decode(&meta); err != nil {
 		return nil, fmt.Errorf("%w: metadata: %v", ErrCorrupt, err)
 	}
+	if meta.Format != int(version) {
+		return nil, fmt.Errorf("%w: the metadata says format %d, the header %d", ErrCorrupt, meta.Format, version)
+	}
 	if err := b.validate(); err != nil {
 		return nil, fmt.Errorf("%w: %v", ErrCorrupt, err)
 	}
-	forest, err := decodeForest(payload[4+mlen:], b.Spec.Len(), len(b.Classes))
+	rest := bytes.NewReader(payload[4+mlen:])
+	forest, err := decodeForest(rest, b.Spec.Len(), len(b.Classes))
 	if err != nil {
 		return nil, fmt.Errorf("%w: forest: %v", ErrCorrupt, err)
+	}
+	if version >= 2 {
+		if err := b.decodeScreen(rest); err != nil {
+			return nil, fmt.Errorf("%w: screen: %v", ErrCorrupt, err)
+		}
+	}
+	if rest.Len() != 0 {
+		return nil, fmt.Errorf("%w: %d bytes after the last forest", ErrCorrupt, rest.Len())
 	}
 	forest.Names, forest.Classes, forest.Mtry = b.Spec.Names, b.Classes, b.Summary.Mtry
 	forest.Importance = make([]float64, len(b.Spec.Names))
@@ -298,10 +328,48 @@ func (fr *forestReader) uvarint(limit uint64, what string) uint64 {
 	return v
 }
 
-func decodeForest(data []byte, features, classes int) (*Forest, error) {
-	fr := &forestReader{r: bytes.NewReader(data)}
+// decodeScreen reads the screen's forests, checked against its metadata.
+func (b *Bundle) decodeScreen(r *bytes.Reader) error {
+	n, err := binary.ReadUvarint(r)
+	if err != nil {
+		return err
+	}
+	s := b.Screen
+	want := 0
+	if s != nil {
+		want = 1
+		if s.Depth != nil {
+			want = 2
+		}
+	}
+	if n != uint64(want) {
+		return fmt.Errorf("%d screen forests, the metadata describes %d", n, want)
+	}
+	if s == nil {
+		return nil
+	}
+	for _, sf := range s.parts() {
+		if len(sf.Names) < b.Spec.Len() || !slices.Equal(sf.Names[:b.Spec.Len()], b.Spec.Names) {
+			return errors.New("screen features do not match the model's")
+		}
+		if !(sf.Low > 0 && sf.Low <= sf.High && sf.High <= 1) || sf.Likely != (sf != &s.Plain) {
+			return fmt.Errorf("screen tiers %v and %v out of order", sf.Low, sf.High)
+		}
+		f, err := decodeForest(r, len(sf.Names), screenClasses)
+		if err != nil {
+			return err
+		}
+		f.Names, f.Classes = sf.Names, screenClassNames
+		f.compile()
+		sf.forest = f
+	}
+	return nil
+}
+
+func decodeForest(r *bytes.Reader, features, classes int) (*Forest, error) {
+	fr := &forestReader{r: r}
 	// A node takes at least two bytes, which bounds every count.
-	limit := uint64(len(data))
+	limit := uint64(r.Len())
 	nTrees := fr.uvarint(limit, "tree count")
 	if fr.err == nil && nTrees == 0 {
 		return nil, errors.New("no trees")
@@ -373,9 +441,6 @@ func decodeForest(data []byte, features, classes int) (*Forest, error) {
 			}
 		}
 		f.Trees = append(f.Trees, t)
-	}
-	if fr.r.Len() != 0 {
-		return nil, fmt.Errorf("%d bytes after the last tree", fr.r.Len())
 	}
 	return f, nil
 }

@@ -5,11 +5,13 @@ import (
 	"context"
 	"errors"
 	"io"
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
 
+	"github.com/spade-detect/spade/datasets"
 	"github.com/spade-detect/spade/features"
 )
 
@@ -137,6 +139,17 @@ func FuzzUnmarshal(f *testing.F) {
 	}
 	good, _ := small.Marshal()
 	f.Add(good)
+	// And one with an ordnance screen (2 trees on a 50-reading library).
+	log, err := features.ReadLog(bytes.NewReader(datasets.DemoHistory), datasets.DemoHistoryName, features.ReadOptions{})
+	if err != nil {
+		f.Fatal(err)
+	}
+	log.Digs = log.Digs[:60]
+	if err := small.AddScreen(context.Background(), log, ScreenOptions{Trees: 2, Library: 50}); err != nil || small.Screen == nil {
+		f.Fatal(err)
+	}
+	screened, _ := small.Marshal()
+	f.Add(screened)
 	f.Add(good[:len(good)/2])
 	f.Add(good[headerLen : len(good)-32])
 	f.Add([]byte("SPADEMDL"))
@@ -152,6 +165,10 @@ func FuzzUnmarshal(f *testing.F) {
 			// A file that loads must predict and save again.
 			x := make([]float64, b.Spec.Len())
 			b.Forest.Predict(x, nil)
+			if b.Screen != nil {
+				b.Screen.Score(x, 0, 0, nil)
+				b.Screen.Score(x, 0, math.NaN(), nil)
+			}
 			if _, err := b.Marshal(); err != nil {
 				t.Fatalf("re-marshal: %v", err)
 			}

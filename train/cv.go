@@ -54,6 +54,9 @@ type Evaluation struct {
 	Seed         uint64     `json:"seed"`
 	Digs         int        `json:"digs"`
 	Classes      []string   `json:"classes"`
+	// Screen is the ordnance screen's evaluation (EvaluateScreen), set by
+	// the caller; nil when it was not made.
+	Screen *ScreenEvaluation `json:"ordnance_screen"`
 	// The pooled held-out probabilities, per row, for further analysis.
 	Probs         [][]float64 `json:"-"`
 	BaselineProbs [][]float64 `json:"-"`

@@ -2,6 +2,7 @@ package train
 
 import (
 	"context"
+	"errors"
 	"math"
 	"time"
 
@@ -15,6 +16,10 @@ type TrainOptions struct {
 	Now     time.Time // the model's date; the same date and seed give the same bytes
 	Version string    // spade's version, recorded in the model
 	Skipped int       // rows the reader skipped, recorded in the summary
+	// Screen configures the ordnance screen; NoScreen leaves it out (for
+	// cross-validation folds, which do not need one).
+	Screen   ScreenOptions
+	NoScreen bool
 }
 
 // TrainBundle grows a forest on a labelled log and assembles the model
@@ -28,7 +33,31 @@ func TrainBundle(ctx context.Context, log *features.Log, spec *features.FeatureS
 	if err != nil {
 		return nil, err
 	}
-	return TrainDataset(ctx, ds, spec, o)
+	b, err := TrainDataset(ctx, ds, spec, o)
+	if err != nil || o.NoScreen {
+		return b, err
+	}
+	if o.Screen.Seed == 0 {
+		o.Screen.Seed = o.Forest.Seed
+	}
+	return b, b.AddScreen(ctx, log, o.Screen)
+}
+
+// AddScreen fits the ordnance screen to the log the bundle was trained on.
+// A history that cannot carry one (ErrNoScreen) leaves the bundle without
+// a screen, which every view of it then says; any other error is returned.
+func (b *Bundle) AddScreen(ctx context.Context, log *features.Log, o ScreenOptions) error {
+	s, err := TrainScreen(ctx, log, b.Spec, o)
+	if errors.Is(err, ErrNoScreen) {
+		b.Screen = nil
+		b.Summary.NoScreen = err.Error()
+		return nil
+	}
+	if err != nil {
+		return err
+	}
+	b.Screen = s
+	return nil
 }
 
 // TrainDataset is TrainBundle on an extracted table.

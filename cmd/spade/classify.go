@@ -53,10 +53,17 @@ past digs in your history; a novelty score (a percentile of your own digs'
 scores; above the 99th the reading is unfamiliar and its probabilities are not
 to be trusted); and the dig decision by your values file.
 
-If a hazardous class (by default any shape "ordnance") reaches 1% (or the
-values file's hazard_threshold), the caution comes first: do not dig, mark the
-spot and report it to the authorities. Such a reading is never called safe. A
-probability is never a guarantee.
+Every reading gets a hazard check, and its caution comes first in every view.
+It has two tiers. "Likely ordnance": do not dig, do not touch, mark the spot and
+report it to the police or the authorities. "Cannot be ruled out": do not dig
+until you have looked into the site's history and the signal; when in doubt,
+report it. The check draws on the model's ordnance screen (spade's simulated
+munitions, fitted to your instrument and ground, so that it warns even when
+your history holds no ordnance; it uses depth_cm when a reading has one) and
+on your history's own hazardous classes (by default any shape "ordnance") at
+1% (or the values file's hazard_threshold). Such a reading is never called
+safe, and an unfamiliar one is "unsure". A model that cannot warn says so in
+every view. A probability is never a guarantee.
 
 Inline readings: HZ=PHASE/AMP per frequency, separated by commas or spaces;
 id=N adds the display ID, gHZ=PHASE/AMP a bare-ground reading beside the target.
@@ -90,9 +97,6 @@ func runClassify(ctx context.Context, g *globalOptions, opts classifyOptions, ar
 		return err
 	}
 	c := classify.New(bundle, vals)
-	for _, w := range c.Warnings() {
-		g.note("warning: %s", w)
-	}
 	next, name, closer, err := readingSource(g, opts, args)
 	if err != nil {
 		return err
@@ -104,7 +108,7 @@ func runClassify(ctx context.Context, g *globalOptions, opts classifyOptions, ar
 	bar := g.progress(-1, "classifying", opts.format.json() || toScreen || opts.reading != "")
 	defer bar.done()
 	return g.writeOutput(opts.output, func(w io.Writer) error {
-		out := newResultWriter(w, opts.format.value, bundle.Classes, opts.top)
+		out := newResultWriter(w, opts.format.value, bundle.Classes, opts.top, c.Warnings())
 		if err := classifyStream(ctx, c, next, name, func(r *classify.Result) error {
 			bar.step(1)
 			return out.write(r)
@@ -213,16 +217,20 @@ func readingSource(g *globalOptions, opts classifyOptions, args []string) (func(
 
 // resultWriter writes results in one of the three views.
 type resultWriter struct {
-	w       *bufio.Writer
-	format  string
-	classes []string
-	top     int
-	n       int
-	cw      *csv.Writer
+	w        *bufio.Writer
+	format   string
+	classes  []string
+	top      int
+	n        int
+	cw       *csv.Writer
+	warnings []string
 }
 
-func newResultWriter(w io.Writer, format string, classes []string, top int) *resultWriter {
-	return &resultWriter{w: bufio.NewWriter(w), format: format, classes: classes, top: top}
+// newResultWriter writes results; warnings about the model as a whole
+// (above all, that it cannot warn of ordnance) head the table and the CSV
+// (as comment lines), and every JSON result carries its hazard check.
+func newResultWriter(w io.Writer, format string, classes []string, top int, warnings []string) *resultWriter {
+	return &resultWriter{w: bufio.NewWriter(w), format: format, classes: classes, top: top, warnings: warnings}
 }
 
 func (o *resultWriter) write(r *classify.Result) error {
@@ -242,19 +250,23 @@ func (o *resultWriter) write(r *classify.Result) error {
 		return err
 	case "csv":
 		if o.cw == nil {
+			for _, w := range o.warnings {
+				fmt.Fprintf(o.w, "# %s\n", w)
+			}
 			o.cw = csv.NewWriter(o.w)
-			header := []string{"dig", "top_class", "top_probability", "verdict", "expected_value", "caution", "hazard_probability", "novelty_percentile", "unfamiliar", "nearest_dig", "nearest_class", "nearest_distance"}
+			header := []string{"dig", "caution", "hazard_check", "hazard_probability", "history_hazard", "screen_score", "top_class", "top_probability", "verdict", "expected_value", "novelty_percentile", "unfamiliar", "nearest_dig", "nearest_class", "nearest_distance"}
 			for _, c := range o.classes {
 				header = append(header, "p_"+c)
 			}
 			o.cw.Write(header)
 		}
-		hp := 0.0
-		if r.Caution != nil {
-			hp = r.Caution.Probability
+		h := r.Hazard
+		check := "available"
+		if !h.Available {
+			check = "unavailable"
 		}
-		rec := []string{r.Dig, r.Top.Class, ff(r.Top.Probability), r.Decision.Verdict, ff(r.Decision.ExpectedValue),
-			strconv.FormatBool(r.Caution != nil), ff(hp), ff(r.Novelty.Percentile), strconv.FormatBool(r.Novelty.Unfamiliar)}
+		rec := []string{r.Dig, h.Tier, check, ff(h.Probability), ff(h.History), ff(h.Screen), r.Top.Class, ff(r.Top.Probability), r.Decision.Verdict, ff(r.Decision.ExpectedValue),
+			ff(r.Novelty.Percentile), strconv.FormatBool(r.Novelty.Unfamiliar)}
 		if len(r.Neighbours) > 0 {
 			rec = append(rec, r.Neighbours[0].Dig, r.Neighbours[0].Class, ff(r.Neighbours[0].Distance))
 		} else {
@@ -265,6 +277,11 @@ func (o *resultWriter) write(r *classify.Result) error {
 		}
 		return o.cw.Write(rec)
 	default:
+		if o.n == 0 {
+			for _, w := range o.warnings {
+				fmt.Fprint(o.w, wrap("!! "+w, 78, ""))
+			}
+		}
 		writeResultTable(o.w, r, o.top)
 		return nil
 	}
@@ -294,10 +311,9 @@ func (o *resultWriter) close() error {
 // the first thing said.
 func writeResultTable(w io.Writer, r *classify.Result, top int) {
 	fmt.Fprintf(w, "%s\n", strings.Repeat("─", 78))
-	if r.Caution != nil {
-		first, rest, _ := strings.Cut(r.Caution.Message, ". ")
-		fmt.Fprintf(w, "%s  !! %s.\n     %s\n", r.Dig, first, rest)
-		fmt.Fprintf(w, "     (%s: %.1f%% in all; a probability is never a guarantee)\n", strings.Join(r.Caution.Classes, ", "), 100*r.Caution.Probability)
+	if c := r.Caution; c != nil {
+		fmt.Fprint(w, wrapHanging(r.Dig+"  ", "!! "+c.Message, 78, "     "))
+		fmt.Fprint(w, wrap(hazardLine(r)+"; a probability is never a guarantee", 78, "     "))
 	} else {
 		fmt.Fprintf(w, "%s  %s\n", r.Dig, verdictLine(r))
 	}
@@ -314,12 +330,31 @@ func writeResultTable(w io.Writer, r *classify.Result, top int) {
 	}
 	fmt.Fprint(w, wrap("material: "+shareList(r.Materials, 4), 78, "     "))
 	fmt.Fprint(w, wrap("shape: "+shareList(r.Shapes, 4), 78, "     "))
+	if r.Caution == nil {
+		fmt.Fprint(w, wrap(hazardLine(r), 78, "     "))
+	}
 	fmt.Fprintf(w, "     novelty: %s percentile of your digs\n", ordinal(int(r.Novelty.Percentile)))
 	var nb []string
 	for _, n := range r.Neighbours {
 		nb = append(nb, fmt.Sprintf("%s %s (%s, %.2f)", n.Dig, n.Class, n.Date, n.Distance))
 	}
 	fmt.Fprint(w, wrap("nearest past digs: "+strings.Join(nb, "; "), 78, "     "))
+}
+
+// hazardLine says what the hazard check found, in one line.
+func hazardLine(r *classify.Result) string {
+	h := r.Hazard
+	if !h.Available {
+		return "hazard check: UNAVAILABLE for this model"
+	}
+	parts := []string{}
+	if h.ScreenUsed != "" {
+		parts = append(parts, fmt.Sprintf("ordnance screen %.0f%% (by %s)", 100*h.Screen, h.ScreenUsed))
+	}
+	if h.History > 0 || r.Caution != nil && len(r.Caution.Classes) > 0 {
+		parts = append(parts, fmt.Sprintf("your hazardous classes %.1f%%", 100*h.History))
+	}
+	return fmt.Sprintf("hazard check: %s; %s", h.Tier, strings.Join(parts, ", "))
 }
 
 func verdictLine(r *classify.Result) string {

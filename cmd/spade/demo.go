@@ -96,13 +96,19 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 
 	// 3. A model, and new readings.
 	fmt.Fprintf(w, "\n== 3. New readings, classified by a model of the whole history\n\n")
-	bar := g.progress(opts.trees, "growing trees", false)
+	bar := g.progress(opts.trees+screenTrees(false, log), "growing trees", false)
+	step := func(int) { bar.step(1) }
 	bundle, err := train.TrainDataset(ctx, ds, spec, train.TrainOptions{Label: features.LabelBoth, Now: today(), Version: version,
-		Forest: train.Options{Trees: opts.trees, Seed: opts.seed, Progress: func(int) { bar.step(1) }}})
+		Forest: train.Options{Trees: opts.trees, Seed: opts.seed, Progress: step}})
+	if err == nil {
+		err = bundle.AddScreen(ctx, log, train.ScreenOptions{Seed: opts.seed, Progress: step})
+	}
 	bar.done()
 	if err != nil {
 		return err
 	}
+	fmt.Fprint(w, wrap(hazardStatus(bundle).Text+" The readings below have no depth, so the screen judges them by phase and amplitude and says at most \"cannot be ruled out\"; the history's own ordnance digs give the \"likely\" tier.", 78, ""))
+	fmt.Fprintln(w)
 	modelPath := filepath.Join(opts.dir, "demo.spade")
 	if err := bundle.Save(modelPath); err != nil {
 		return fmt.Errorf("demo: %w", err)

@@ -39,7 +39,7 @@ func TestDemoGolden(t *testing.T) {
 		}
 		f.Close()
 	}
-	for _, want := range []string{"one number", "Dig saving", "POSSIBLE ORDNANCE", "unfamiliar", "what it really was", "Safety"} {
+	for _, want := range []string{"one number", "Dig saving", "LIKELY ORDNANCE", "ORDNANCE CANNOT BE RULED OUT", "ordnance screen", "unfamiliar", "what it really was", "Safety"} {
 		if !strings.Contains(stdout, want) {
 			t.Errorf("demo output lacks %q", want)
 		}

@@ -3,10 +3,12 @@ package main
 import (
 	"context"
 	"encoding/json"
+	"errors"
 	"io"
 	"sync"
 
 	"github.com/spade-detect/spade/classify"
+	"github.com/spade-detect/spade/datasets"
 	"github.com/spade-detect/spade/features"
 	"github.com/spade-detect/spade/train"
 	"github.com/spf13/cobra"
@@ -82,6 +84,9 @@ func runEvaluate(ctx context.Context, g *globalOptions, opts evaluateOptions, ar
 	if err != nil {
 		return err
 	}
+	if ev.Screen, err = evaluateScreen(ctx, g, log, spec, opts.seed, vals, opts.format.json()); err != nil {
+		return err
+	}
 	return g.writeOutput(opts.output, func(w io.Writer) error {
 		if opts.format.json() {
 			enc := json.NewEncoder(w)
@@ -89,8 +94,34 @@ func runEvaluate(ctx context.Context, g *globalOptions, opts evaluateOptions, ar
 			return enc.Encode(ev)
 		}
 		writeEvaluation(w, ev, string(kind))
+		if ev.Screen == nil {
+			writeScreenEvaluation(w, nil)
+		}
 		return nil
 	})
+}
+
+// evaluateScreen measures the ordnance screen on the log: each library
+// group held out from the screen's fit, and the user's digs out of bag. A
+// log that cannot carry a screen gives nil, which the report states.
+func evaluateScreen(ctx context.Context, g *globalOptions, log *features.Log, spec *features.FeatureSpec, seed uint64, vals *classify.Values, quiet bool) (*train.ScreenEvaluation, error) {
+	var keeper func(*features.Dig) bool
+	if vals != nil {
+		keeper = func(d *features.Dig) bool { return vals.IsKeeper(d.Class(features.LabelBoth)) }
+	}
+	groups := len(datasets.MunitionGroups()) + 1
+	bar := g.progress(groups*screenTrees(false, log), "testing the ordnance screen", quiet)
+	var mu sync.Mutex
+	ev, err := train.EvaluateScreen(ctx, log, spec, train.ScreenOptions{Seed: seed, Progress: func(int) {
+		mu.Lock()
+		defer mu.Unlock()
+		bar.step(1)
+	}}, keeper)
+	bar.done()
+	if errors.Is(err, train.ErrNoScreen) {
+		return nil, nil
+	}
+	return ev, err
 }
 
 // specNotes says once what the log's feature spec leaves out.

@@ -45,9 +45,10 @@ func runInspect(_ context.Context, g *globalOptions, opts inspectOptions, args [
 	if opts.format.json() {
 		enc := json.NewEncoder(w)
 		enc.SetIndent("", "  ")
-		return enc.Encode(map[string]any{"format": train.FormatVersion, "spec": b.Spec, "label": b.Label, "classes": b.Classes, "summary": s})
+		return enc.Encode(map[string]any{"format": b.Format, "spec": b.Spec, "label": b.Label, "classes": b.Classes, "summary": s, "hazard_check": hazardStatus(b)})
 	}
-	fmt.Fprintf(w, "model %s (format %d)\n", args[0], train.FormatVersion)
+	fmt.Fprintf(w, "model %s (format %d)\n", args[0], b.Format)
+	fmt.Fprint(w, wrap(hazardStatus(b).Text, 78, "  "))
 	fmt.Fprintf(w, "  made by spade %s on %s, seed %d\n", s.SpadeVersion, s.Created, s.Seed)
 	fmt.Fprintf(w, "  frequencies  %s Hz (amplitudes relative to %d Hz)\n", joinInts(b.Spec.Freqs), b.Spec.RefHz)
 	fmt.Fprintf(w, "  forest       %d trees, %d features tried per split\n", s.Trees, s.Mtry)
@@ -63,6 +64,20 @@ func runInspect(_ context.Context, g *globalOptions, opts inspectOptions, args [
 	fmt.Fprintf(w, "\n  %-20s %s\n", "feature", "share of the forest's impurity decrease")
 	for _, n := range names {
 		fmt.Fprintf(w, "  %-20s %s %4.1f%%\n", n, bar(s.Importance[n], 30), 100*s.Importance[n])
+	}
+	if sc := b.Screen; sc != nil {
+		fmt.Fprintf(w, "\n  ordnance screen (%s): %d simulated munitions, %d of your digs\n  (%d hazardous); out of bag:\n", sc.Library, sc.LibraryDigs, sc.HistoryDigs, sc.OwnHazardDigs)
+		fmt.Fprintf(w, "  %-22s %14s %16s %16s\n", "judging by", "warns from", "munitions caught", "your digs flagged")
+		for _, p := range []struct {
+			name string
+			f    *train.ScreenForest
+		}{{"phase and amplitude", &sc.Plain}, {"with depth", sc.Depth}} {
+			if p.f == nil {
+				continue
+			}
+			o := p.f.OutOfBag
+			fmt.Fprintf(w, "  %-22s %14.2f %16s %16s\n", p.name, p.f.Low, pct(o.LibraryCaught), pct(o.DigsFlagged))
+		}
 	}
 	return nil
 }

@@ -56,6 +56,9 @@ func writeEvaluation(w io.Writer, ev *train.Evaluation, label string) {
 			fmt.Fprintf(w, "  (hazard classes %s are never to be dug and are left out)\n", strings.Join(d.Hazards, ", "))
 		}
 	}
+	if ev.Screen != nil {
+		writeScreenEvaluation(w, ev.Screen)
+	}
 	fmt.Fprintf(w, "\nPer class (spade)%19s %9s %7s %6s\n", "digs", "precision", "recall", "F1")
 	for _, c := range ev.Classes {
 		pc := m.PerClass[c]
@@ -72,6 +75,43 @@ func writeEvaluation(w io.Writer, ev *train.Evaluation, label string) {
 	}
 }
 
+// writeScreenEvaluation reports the ordnance screen: on spade's simulated
+// munitions, each group held out from the screen's own fit, and on the
+// user's digs.
+func writeScreenEvaluation(w io.Writer, s *train.ScreenEvaluation) {
+	fmt.Fprintf(w, "\nOrdnance screen: would it warn of munitions your history lacks?\n")
+	if s == nil {
+		fmt.Fprint(w, wrap("HAZARD CHECK UNAVAILABLE: this log cannot carry an ordnance screen (no usable amplitudes), so a model of it warns only from your own hazardous digs.", 78, "  "))
+		return
+	}
+	col := "no depth"
+	if s.Depth {
+		col = "with depth"
+	}
+	fmt.Fprint(w, wrap(fmt.Sprintf("Simulated munitions (%s) read as your instrument would, each group scored by a screen fitted without it: %.0f%% warned of by phase and amplitude alone%s.",
+		s.Library, 100*s.Caught, map[bool]string{true: fmt.Sprintf(", %.0f%% with their depth", 100*s.CaughtDepth), false: ""}[s.Depth]), 78, "  "))
+	fmt.Fprintf(w, "  %-32s %9s %11s\n", "held-out group", "no depth", col)
+	for _, gc := range s.Groups {
+		d := pct(gc.Caught)
+		if s.Depth {
+			d = pct(gc.CaughtDepth)
+		}
+		fmt.Fprintf(w, "  %-32s %9s %11s\n", trunc(gc.Group, 32), pct(gc.Caught), d)
+	}
+	by := "by phase and amplitude"
+	if s.Depth {
+		by = "with depth"
+	}
+	line := fmt.Sprintf("Your own digs, out of bag (%s): the screen flags %.0f%% of %d trash digs", by, 100*s.TrashFlagged, s.TrashDigs)
+	if s.KeeperDigs > 0 {
+		line += fmt.Sprintf(" and %.0f%% of %d keepers", 100*s.KeepersFlagged, s.KeeperDigs)
+	}
+	if s.OwnHazardDigs > 0 {
+		line += fmt.Sprintf("; it catches %.0f%% of your %d hazardous digs", 100*s.OwnHazardCaught, s.OwnHazardDigs)
+	}
+	fmt.Fprint(w, wrap(line+".", 78, "  "))
+}
+
 // wrap breaks text into lines of at most width columns, each indented.
 func wrap(text string, width int, indent string) string {
 	var b strings.Builder
@@ -80,6 +120,24 @@ func wrap(text string, width int, indent string) string {
 		if len([]rune(line))+len([]rune(word))+1 > width && strings.TrimSpace(line) != "" {
 			b.WriteString(strings.TrimRight(line, " ") + "\n")
 			line = indent + "  "
+		}
+		line += word + " "
+	}
+	if strings.TrimSpace(line) != "" {
+		b.WriteString(strings.TrimRight(line, " ") + "\n")
+	}
+	return b.String()
+}
+
+// wrapHanging is wrap with a hanging indent: the first line starts with
+// lead, the others at indent.
+func wrapHanging(lead, text string, width int, indent string) string {
+	var b strings.Builder
+	line := lead
+	for _, word := range strings.Fields(text) {
+		if len([]rune(line))+len([]rune(word))+1 > width && strings.TrimSpace(line) != "" {
+			b.WriteString(strings.TrimRight(line, " ") + "\n")
+			line = indent
 		}
 		line += word + " "
 	}

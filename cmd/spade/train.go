@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"fmt"
 
+	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/features"
 	"github.com/spade-detect/spade/train"
 	"github.com/spf13/cobra"
@@ -12,11 +13,12 @@ import (
 )
 
 type trainOptions struct {
-	in     labelledLogFlags
-	format formatFlag
-	output string
-	trees  int
-	seed   uint64
+	in       labelledLogFlags
+	format   formatFlag
+	output   string
+	trees    int
+	seed     uint64
+	noScreen bool
 }
 
 func (o *trainOptions) AddFlags(fs *pflag.FlagSet) {
@@ -25,6 +27,7 @@ func (o *trainOptions) AddFlags(fs *pflag.FlagSet) {
 	fs.StringVarP(&o.output, "output", "o", "", "write the model to `FILE` (required)")
 	fs.IntVar(&o.trees, "trees", 200, "trees in the forest")
 	fs.Uint64Var(&o.seed, "seed", 1, "random seed; the same seed and log give the same model file")
+	fs.BoolVar(&o.noScreen, "no-screen", false, "leave out the ordnance screen (for comparison only: the model then warns of ordnance only from your own hazardous digs)")
 }
 
 func newTrainCommand(g *globalOptions) *cobra.Command {
@@ -35,8 +38,13 @@ func newTrainCommand(g *globalOptions) *cobra.Command {
 		Long: `train grows a random forest on your dig history (every reading with what came
 out of the ground) and writes a model file: the feature spec and frequencies,
 the classes, the forest, an out-of-bag summary, and the training digs' feature
-vectors with id, class and date for the nearest-dig explanations. It holds no
-site names or coordinates. The file is written atomically: an interrupted
+vectors with id, class and date for the nearest-dig explanations, and the
+ordnance screen: a second forest that tells spade's simulated munitions
+(projectiles, mortar bombs, grenades, round shot and fuze bodies, read as your
+instrument would read them at your frequencies, on your ground, at your noise
+floor) from your own digs, so that the model warns of possible ordnance even
+when your history holds none. With depth_cm in the log the screen also judges
+by apparent size. The file holds no site names or coordinates. The file is written atomically: an interrupted
 training never destroys the previous model.`,
 		Example: "  spade train digs.csv -o my.spade\n  spade train digs.csv -o shapes.spade --label shape --trees 300 --skip-unlabelled",
 		Args:    cobra.ExactArgs(1),
@@ -62,10 +70,12 @@ func runTrain(ctx context.Context, g *globalOptions, opts trainOptions, args []s
 	}
 	spec := features.NewSpec(log.Freqs, log.HasDisplayID)
 	g.specNotes(spec)
-	bar := g.progress(opts.trees, "growing trees", opts.format.json())
+	bar := g.progress(opts.trees+screenTrees(opts.noScreen, log), "growing trees", opts.format.json())
+	step := func(int) { bar.step(1) }
 	bundle, err := train.TrainBundle(ctx, log, spec, train.TrainOptions{
 		Label: kind, Now: today(), Version: version, Skipped: len(log.Bad) + log.Unlabelled,
-		Forest: train.Options{Trees: opts.trees, Seed: opts.seed, Progress: func(int) { bar.step(1) }},
+		Forest: train.Options{Trees: opts.trees, Seed: opts.seed, Progress: step},
+		Screen: train.ScreenOptions{Progress: step}, NoScreen: opts.noScreen,
 	})
 	bar.done()
 	if err != nil {
@@ -77,11 +87,58 @@ func runTrain(ctx context.Context, g *globalOptions, opts trainOptions, args []s
 	if opts.format.json() {
 		enc := json.NewEncoder(g.stdout)
 		enc.SetIndent("", "  ")
-		return enc.Encode(map[string]any{"model": opts.output, "summary": bundle.Summary, "classes": bundle.Classes, "freqs": spec.Freqs})
+		return enc.Encode(map[string]any{"model": opts.output, "summary": bundle.Summary, "classes": bundle.Classes, "freqs": spec.Freqs,
+			"hazard_check": hazardStatus(bundle)})
 	}
 	s := bundle.Summary
 	fmt.Fprintf(g.stdout, "Trained on %d digs, %d classes (%s), %d trees; wrote %s\n", s.Digs, len(bundle.Classes), kind, s.Trees, opts.output)
 	fmt.Fprintf(g.stdout, "Out-of-bag: accuracy %.3f, balanced accuracy %.3f, log-loss %.3f\n", s.OutOfBag.Accuracy, s.OutOfBag.BalancedAccuracy, s.OutOfBag.LogLoss)
+	fmt.Fprint(g.stdout, wrap(hazardStatus(bundle).Text, 78, ""))
 	fmt.Fprintln(g.stdout, "For the full report next to the single-number baseline: spade evaluate LOG")
 	return nil
+}
+
+// screenTrees is how many trees the screen will grow, for the progress bar.
+func screenTrees(off bool, log *features.Log) int {
+	if off {
+		return 0
+	}
+	for i := range log.Digs {
+		if !(log.Digs[i].DepthCM >= 0) {
+			return 100
+		}
+	}
+	return 200
+}
+
+// hazardCheckStatus is whether a model can warn of ordnance, for train,
+// inspect and evaluate, in every format.
+type hazardCheckStatus struct {
+	Available bool          `json:"available"`
+	Screen    *train.Screen `json:"screen,omitempty"`
+	Text      string        `json:"text"`
+}
+
+func hazardStatus(b *train.Bundle) hazardCheckStatus {
+	if b.Screen != nil {
+		return hazardCheckStatus{Available: true, Screen: b.Screen, Text: b.Screen.Describe() + "."}
+	}
+	for _, c := range b.Classes {
+		if train.IsHazard(classDig(c, b.Label), train.DefaultHazards) {
+			return hazardCheckStatus{Available: true, Text: "ordnance screen off: the hazard check rests on your history's own hazardous classes alone."}
+		}
+	}
+	return hazardCheckStatus{Text: classify.UnavailableNote(b, classify.DefaultValues()) + "."}
+}
+
+// classDig is a dig standing for a class name under a label, for IsHazard.
+func classDig(class string, label features.Label) *features.Dig {
+	switch label {
+	case features.LabelMaterial:
+		return &features.Dig{Material: class}
+	case features.LabelShape:
+		return &features.Dig{Shape: class}
+	}
+	m, s := features.SplitClass(class)
+	return &features.Dig{Material: m, Shape: s}
 }

@@ -1,0 +1,150 @@
+package main
+
+import (
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strings"
+	"sync"
+	"testing"
+)
+
+// noHazardModel is a model of the demo history with no ordnance digs left
+// and no screen: it cannot warn, and must say so everywhere.
+var noHazard struct {
+	sync.Once
+	model, log string
+}
+
+func noHazardModel(t *testing.T) (model, log string) {
+	dir, _, history, _, _ := demoModel(t)
+	noHazard.Do(func() {
+		data, err := os.ReadFile(history)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var kept []string
+		for _, line := range strings.SplitAfter(string(data), "\n") {
+			if !strings.Contains(line, ",ordnance,") {
+				kept = append(kept, line)
+			}
+		}
+		noHazard.log = filepath.Join(dir, "no-ordnance.csv")
+		os.WriteFile(noHazard.log, []byte(strings.Join(kept, "")), 0o644)
+		noHazard.model = filepath.Join(dir, "no-screen.spade")
+		if _, stderr, code := spade(t, "", "train", noHazard.log, "-o", noHazard.model, "--trees", "20", "--no-screen", "-q"); code != 0 {
+			t.Fatalf("train: %s", stderr)
+		}
+	})
+	return noHazard.model, noHazard.log
+}
+
+func TestUnavailableHazardCheckStandsInEveryFormat(t *testing.T) {
+	model, log := noHazardModel(t)
+	_, _, _, readings, _ := demoModel(t)
+	for _, format := range []string{"table", "csv", "json"} {
+		// -q silences notes on stderr; the output itself must still say it.
+		out, _, code := spade(t, "", "classify", "--model", model, "--format", format, "-q", readings)
+		if code != 0 {
+			t.Fatalf("%s: exit %d", format, code)
+		}
+		switch format {
+		case "table", "csv":
+			if !strings.Contains(strings.SplitN(out, "\n", 2)[0], "HAZARD CHECK UNAVAILABLE") {
+				t.Errorf("%s: the first line does not say the hazard check is unavailable:\n%.300s", format, out)
+			}
+			if format == "csv" && !strings.Contains(out, ",unavailable,") {
+				t.Errorf("csv: no hazard_check column saying unavailable")
+			}
+		case "json":
+			var rs []struct {
+				Hazard struct {
+					Available bool   `json:"available"`
+					Note      string `json:"note"`
+				} `json:"hazard_check"`
+			}
+			if err := json.Unmarshal([]byte(out), &rs); err != nil || len(rs) == 0 {
+				t.Fatalf("json: %v", err)
+			}
+			for _, r := range rs {
+				if r.Hazard.Available || !strings.Contains(r.Hazard.Note, "cannot warn") {
+					t.Errorf("json: hazard check %+v", r.Hazard)
+				}
+			}
+		}
+	}
+	// train, inspect and evaluate say it too.
+	out, _, _ := spade(t, "", "inspect", model)
+	if !strings.Contains(out, "HAZARD CHECK UNAVAILABLE") {
+		t.Errorf("inspect does not say the hazard check is unavailable:\n%s", out)
+	}
+	out, _, _ = spade(t, "", "inspect", "--format", "json", model)
+	if !strings.Contains(out, `"available": false`) {
+		t.Errorf("inspect json: %s", out)
+	}
+	out, _, _ = spade(t, "", "train", log, "-o", filepath.Join(t.TempDir(), "m.spade"), "--trees", "5", "--no-screen", "-q")
+	if !strings.Contains(out, "HAZARD CHECK UNAVAILABLE") {
+		t.Errorf("train does not say the hazard check is unavailable:\n%s", out)
+	}
+}
+
+func TestScreenedModelWarnsWithoutOrdnanceInTheHistory(t *testing.T) {
+	_, log := noHazardModel(t)
+	dir := t.TempDir()
+	model := filepath.Join(dir, "m.spade")
+	out, stderr, code := spade(t, "", "train", log, "-o", model, "--trees", "20", "--label", "material", "-q")
+	if code != 0 {
+		t.Fatalf("train: %s", stderr)
+	}
+	if !strings.Contains(out, "ordnance screen on") {
+		t.Errorf("train does not describe the screen:\n%s", out)
+	}
+	_, _, _, readings, _ := demoModel(t)
+	res, _, code := spade(t, "", "classify", "--model", model, "--format", "json", readings)
+	if code != 0 {
+		t.Fatal("classify failed")
+	}
+	var rs []struct {
+		Dig     string `json:"dig"`
+		Caution *struct {
+			Tier string `json:"tier"`
+		} `json:"caution"`
+		Hazard struct {
+			Available bool `json:"available"`
+		} `json:"hazard_check"`
+		Decision struct {
+			Verdict string `json:"verdict"`
+		} `json:"decision"`
+	}
+	if err := json.Unmarshal([]byte(res), &rs); err != nil {
+		t.Fatal(err)
+	}
+	for _, r := range rs {
+		if !r.Hazard.Available {
+			t.Errorf("%s: the screened --label material model cannot warn", r.Dig)
+		}
+		// R05 is the demo's simulated projectile: a history without
+		// ordnance, trained with --label material, still holds it back.
+		if r.Dig == "R05" && (r.Caution == nil || r.Decision.Verdict != "do not dig") {
+			t.Errorf("R05, a simulated projectile: caution %v, verdict %q", r.Caution, r.Decision.Verdict)
+		}
+	}
+}
+
+func TestHazardThresholdIsAFraction(t *testing.T) {
+	_, model, _, readings, _ := demoModel(t)
+	dir := t.TempDir()
+	for _, v := range []string{"1", "0.99", "-0.01", "0", "nan", "0.51"} {
+		path := filepath.Join(dir, "v.toml")
+		os.WriteFile(path, []byte("hazard_threshold = "+v+"\n"), 0o644)
+		_, stderr, code := spade(t, "", "classify", "--model", model, "--values", path, readings)
+		if code == 0 || !strings.Contains(stderr, "hazard_threshold is a fraction: 0.01 means 1 %") {
+			t.Errorf("hazard_threshold = %s: exit %d, %q", v, code, stderr)
+		}
+	}
+	path := filepath.Join(dir, "ok.toml")
+	os.WriteFile(path, []byte("hazard_threshold = 0.5\n"), 0o644)
+	if _, stderr, code := spade(t, "", "classify", "--model", model, "--values", path, readings); code != 0 {
+		t.Errorf("hazard_threshold = 0.5 refused: %s", stderr)
+	}
+}
