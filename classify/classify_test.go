@@ -321,3 +321,30 @@ func BenchmarkClassifyReading(b *testing.B) {
 }
 
 func errorsAs(err error, target any) bool { return errors.As(err, target) }
+
+func TestOneDigHistoryNeverNaN(t *testing.T) {
+	// A one-dig history has no neighbour to leave out: its novelty
+	// reference is empty, and every reading must then be unfamiliar (fail
+	// safe), with finite numbers everywhere.
+	_, log := demoModel(t)
+	one := &features.Log{Name: "one", Freqs: log.Freqs, Digs: log.Digs[:1], HasDisplayID: true}
+	spec := features.NewSpec(one.Freqs, true)
+	b, err := train.TrainBundle(context.Background(), one, spec, train.TrainOptions{Forest: train.Options{Trees: 3, Seed: 1}, NoScreen: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	c := New(b, nil)
+	for _, d := range demoReadings(t) {
+		r, err := c.Classify(&d)
+		if err != nil {
+			t.Fatal(err)
+		}
+		n := r.Novelty
+		if math.IsNaN(n.Score) || math.IsNaN(n.Percentile) || !n.Unfamiliar || r.Decision.Verdict == VerdictDig {
+			t.Errorf("%s: novelty %+v, verdict %q", d.ID, n, r.Decision.Verdict)
+		}
+		if math.IsNaN(r.Hazard.Probability) {
+			t.Errorf("%s: hazard NaN", d.ID)
+		}
+	}
+}
