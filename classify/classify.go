@@ -185,7 +185,7 @@ func (c *Classifier) Classify(d *features.Dig) (*Result, error) {
 			return nil, fmt.Errorf("%w: %s is %v (a phase or amplitude out of range?)", ErrNotFinite, b.Spec.Names[i], v)
 		}
 	}
-	c.probs = b.Forest.Predict(c.vec, c.probs)
+	c.probs = b.Predict(c.vec, c.probs)
 	c.std = c.space.standardise(c.vec, c.std)
 	c.nb = c.space.nearest(c.std, max(noveltyK, Neighbours), -1, c.nb)
 

@@ -348,3 +348,22 @@ func TestOneDigHistoryNeverNaN(t *testing.T) {
 		}
 	}
 }
+
+func TestNoProbabilityIsExactlyZeroOrOne(t *testing.T) {
+	// Issue 12: a probability is never a guarantee, so the model's
+	// probabilities, shrunk toward the class shares, lie strictly inside
+	// (0, 1), also for a reading as plain as foil.
+	b, _ := demoModel(t)
+	if b.Shrinkage == nil || !(b.Shrinkage.Lambda >= train.MinShrink) {
+		t.Fatalf("shrinkage %+v", b.Shrinkage)
+	}
+	c := New(b, nil)
+	for _, d := range demoReadings(t) {
+		r, _ := c.Classify(&d)
+		for cl, p := range r.Probabilities {
+			if !(p > 0 && p < 1) {
+				t.Errorf("%s: p(%s) = %v", d.ID, cl, p)
+			}
+		}
+	}
+}

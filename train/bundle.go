@@ -42,6 +42,12 @@ const (
 	maxTreeDepth  = 4096
 )
 
+// Predict is the model's class probabilities for a feature vector: the
+// forest's, shrunk toward the class shares. p is reused when long enough.
+func (b *Bundle) Predict(x, p []float64) []float64 {
+	return b.Shrinkage.Apply(b.Forest.Predict(x, p))
+}
+
 // Errors of Load; test with errors.Is.
 var (
 	ErrNotModel = errors.New("not a spade model file")
@@ -85,6 +91,10 @@ type Bundle struct {
 	Summary  Summary               `json:"summary"`
 	Baseline *Baseline             `json:"baseline"`
 	Training Training              `json:"training"`
+	// Shrinkage pulls the forest's probabilities toward the class shares
+	// (see Shrinkage); nil in a model made before it, whose probabilities
+	// are then the forest's own. Training.OutOfBag is already shrunk.
+	Shrinkage *Shrinkage `json:"shrinkage,omitempty"`
 	// Screen is the ordnance screen; nil in a format 1 model, or where the
 	// history could not carry one.
 	Screen *Screen `json:"screen,omitempty"`
@@ -261,6 +271,16 @@ func (b *Bundle) validate() error {
 	for i := range n {
 		if t.Y[i] < 0 || int(t.Y[i]) >= K || len(t.Vectors[i]) != p || len(t.OutOfBag[i]) != K {
 			return fmt.Errorf("training row %d malformed", i)
+		}
+	}
+	if sh := b.Shrinkage; sh != nil {
+		if len(sh.Prior) != K || !(sh.Lambda >= 0 && sh.Lambda <= 1) {
+			return errors.New("shrinkage malformed")
+		}
+		for _, p := range sh.Prior {
+			if !(p > 0 && p <= 1) {
+				return errors.New("shrinkage prior malformed")
+			}
 		}
 	}
 	if b.Baseline != nil {

@@ -39,6 +39,9 @@ type EvalOptions struct {
 	Forest  Options
 	Keepers []string // classes worth digging, for the dig-saving curve
 	Hazards []string // classes never to be dug
+	// Raw leaves the forest's probabilities unshrunk, for comparison with
+	// other forests (scikit-learn's are raw).
+	Raw bool
 	// Progress, when set, is called with trees grown so far and in all.
 	Progress func(done, total int)
 }
@@ -95,11 +98,19 @@ func CrossValidate(ctx context.Context, ds *Dataset, o EvalOptions) (*Evaluation
 			base := k * fo.Trees
 			fopts.Progress = func(done int) { o.Progress(base+done, total) }
 		}
-		forest, _, err := Grow(ctx, trainDS, fopts)
+		forest, oob, err := Grow(ctx, trainDS, fopts)
 		if err != nil {
 			return nil, err
 		}
+		// The fold's shrinkage is fitted on its own training digs' out-of-bag
+		// predictions, as a model of the whole history's is.
+		shrink := FitShrinkage(trainDS.Y, oob, K)
 		probs := forest.PredictDataset(testDS)
+		if !o.Raw {
+			for _, p := range probs {
+				shrink.Apply(p)
+			}
+		}
 		bl := FitBaseline(ds.Names[axis], trainDS.Cols[axis], trainDS.Y, K)
 		for j, i := range testIdx {
 			ev.Probs[i] = probs[j]

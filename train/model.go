@@ -68,6 +68,17 @@ func TrainDataset(ctx context.Context, ds *Dataset, spec *features.FeatureSpec, 
 		return nil, err
 	}
 	K := len(ds.Classes)
+	shrink := FitShrinkage(ds.Y, oob, K)
+	x := make([]float64, len(ds.Names))
+	for i := range oob {
+		if math.IsNaN(oob[i][0]) {
+			// Every tree saw this dig (rare beyond a few trees): its in-bag
+			// prediction stands in, so the stored figures stay finite.
+			x = ds.Row(i, x)
+			oob[i] = forest.Predict(x, nil)
+		}
+		shrink.Apply(oob[i])
+	}
 	summary := Summary{
 		SpadeVersion: o.Version, Created: o.Now.UTC().Format(time.DateOnly), Seed: fo.Seed,
 		Trees: fo.Trees, Mtry: forest.Mtry, Digs: ds.Rows(), ClassCounts: map[string]int{},
@@ -83,20 +94,13 @@ func TrainDataset(ctx context.Context, ds *Dataset, spec *features.FeatureSpec, 
 	if tr.IDs == nil {
 		tr.IDs, tr.Dates = make([]string, ds.Rows()), make([]string, ds.Rows())
 	}
-	x := make([]float64, len(ds.Names))
 	for i := range ds.Rows() {
 		tr.Vectors[i] = ds.Row(i, nil)
-		if math.IsNaN(oob[i][0]) {
-			// Every tree saw this dig (rare beyond a few trees): its in-bag
-			// prediction stands in, so the stored figures stay finite.
-			x = ds.Row(i, x)
-			tr.OutOfBag[i] = forest.Predict(x, nil)
-		}
 	}
 	axis := BaselineAxis(ds.Names)
 	return &Bundle{
 		Spec: spec, Label: o.Label, Classes: ds.Classes, Summary: summary,
 		Baseline: FitBaseline(ds.Names[axis], ds.Cols[axis], ds.Y, K),
-		Training: tr, Forest: forest,
+		Training: tr, Forest: forest, Shrinkage: &shrink,
 	}, nil
 }

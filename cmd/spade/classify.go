@@ -326,7 +326,7 @@ func writeResultTable(w io.Writer, r *classify.Result, top int) {
 		if !hazard && (i >= top || cp.Probability < 0.005) {
 			continue
 		}
-		fmt.Fprintf(w, "     %-28s %s %5.1f%%\n", trunc(cp.Class, 28), bar(cp.Probability, 30), 100*cp.Probability)
+		fmt.Fprintf(w, "     %-28s %s %6s\n", trunc(cp.Class, 28), bar(cp.Probability, 30), probText(cp.Probability, 1))
 	}
 	fmt.Fprint(w, wrap("material: "+shareList(r.Materials, 4), 78, "     "))
 	fmt.Fprint(w, wrap("shape: "+shareList(r.Shapes, 4), 78, "     "))
@@ -349,10 +349,10 @@ func hazardLine(r *classify.Result) string {
 	}
 	parts := []string{}
 	if h.ScreenUsed != "" {
-		parts = append(parts, fmt.Sprintf("ordnance screen %.0f%% (by %s)", 100*h.Screen, h.ScreenUsed))
+		parts = append(parts, fmt.Sprintf("ordnance screen %s (by %s)", probText(h.Screen, 0), h.ScreenUsed))
 	}
-	if h.History > 0 || r.Caution != nil && len(r.Caution.Classes) > 0 {
-		parts = append(parts, fmt.Sprintf("your hazardous classes %.1f%%", 100*h.History))
+	if h.History >= 0.01 || r.Caution != nil && len(r.Caution.Classes) > 0 {
+		parts = append(parts, "your hazardous classes "+probText(h.History, 1))
 	}
 	return fmt.Sprintf("hazard check: %s; %s", h.Tier, strings.Join(parts, ", "))
 }
@@ -361,21 +361,35 @@ func verdictLine(r *classify.Result) string {
 	d := r.Decision
 	switch d.Verdict {
 	case "unsure":
-		return fmt.Sprintf("UNSURE: looks most like %s (%.0f%%), but see below", r.Top.Class, 100*r.Top.Probability)
+		return fmt.Sprintf("UNSURE: looks most like %s (%s), but see below", r.Top.Class, probText(r.Top.Probability, 0))
 	case "dig":
-		return fmt.Sprintf("DIG: %s %.0f%%, expected value %+.1f by your values", r.Top.Class, 100*r.Top.Probability, d.ExpectedValue)
+		return fmt.Sprintf("DIG: %s %s, expected value %+.1f by your values", r.Top.Class, probText(r.Top.Probability, 0), d.ExpectedValue)
 	default:
-		return fmt.Sprintf("skip: %s %.0f%%, expected value %+.1f by your values", r.Top.Class, 100*r.Top.Probability, d.ExpectedValue)
+		return fmt.Sprintf("skip: %s %s, expected value %+.1f by your values", r.Top.Class, probText(r.Top.Probability, 0), d.ExpectedValue)
 	}
+}
+
+// probText writes a probability as a percentage with the given decimals,
+// but never as 0% or 100%: spade's probabilities are never exactly 0 or 1,
+// and a probability is never a guarantee. Below 1% it says "<1%", above
+// 99% ">99%".
+func probText(p float64, decimals int) string {
+	switch {
+	case p < 0.01:
+		return "<1%"
+	case p > 0.99:
+		return ">99%"
+	}
+	return strconv.FormatFloat(100*p, 'f', decimals, 64) + "%"
 }
 
 func shareList(ps []classify.ClassP, n int) string {
 	var s []string
 	for _, p := range ps[:min(n, len(ps))] {
-		if p.Probability < 0.005 {
+		if p.Probability < 0.01 {
 			break
 		}
-		s = append(s, fmt.Sprintf("%s %.0f%%", p.Class, 100*p.Probability))
+		s = append(s, p.Class+" "+probText(p.Probability, 0))
 	}
 	return strings.Join(s, ", ")
 }

@@ -174,7 +174,7 @@ func modelProbs(path string, kind features.Label, log *features.Log, ds *train.D
 			if err != nil {
 				return nil, &features.ParseError{File: log.Name, Line: log.Digs[i].Line, Err: err}
 			}
-			p = b.Forest.Predict(x, nil)
+			p = b.Predict(x, nil)
 		}
 		probs[i] = make([]float64, len(ds.Classes))
 		for k, v := range p {
