@@ -100,21 +100,132 @@ func ParseValues(name, text string) (*Values, error) {
 	if !(v.CostPerDig >= 0) || math.IsInf(v.CostPerDig, 0) {
 		return nil, fmt.Errorf("%s: %w: cost_per_dig must be a finite number >= 0, got %v", name, ErrValues, v.CostPerDig)
 	}
+	// Keys in sorted order, so that whatever is said is said the same way
+	// every run.
+	keys := make([]string, 0, len(v.Value))
+	for k := range v.Value {
+		keys = append(keys, k)
+	}
+	slices.Sort(keys)
 	norm := map[string]float64{}
-	for k, x := range v.Value {
+	raw := map[string]string{}
+	for _, k := range keys {
+		x := v.Value[k]
 		if math.IsNaN(x) || math.IsInf(x, 0) {
 			return nil, fmt.Errorf("%s: %w: value of %q must be a finite number, got %v", name, ErrValues, k, x)
 		}
-		norm[strings.ToLower(strings.TrimSpace(k))] = x
+		n := normaliseName(k)
+		if prev, ok := raw[n]; ok {
+			return nil, fmt.Errorf("%s: %w: keys %q and %q differ only in case or spacing; keep one", name, ErrValues, prev, k)
+		}
+		raw[n] = k
+		norm[n] = x
 	}
 	v.Value = norm
 	for i := range v.Hazards {
-		v.Hazards[i] = strings.ToLower(strings.TrimSpace(v.Hazards[i]))
+		v.Hazards[i] = normaliseName(v.Hazards[i])
 	}
 	for i := range v.Keep {
-		v.Keep[i] = strings.ToLower(strings.TrimSpace(v.Keep[i]))
+		v.Keep[i] = normaliseName(v.Keep[i])
 	}
 	return v, nil
+}
+
+// normaliseName case-folds a class, material or shape name and trims it,
+// with any spaces around the "/" of a joint class taken out.
+func normaliseName(s string) string {
+	m, sh, joint := strings.Cut(strings.ToLower(strings.TrimSpace(s)), "/")
+	if !joint {
+		return m
+	}
+	return strings.TrimSpace(m) + "/" + strings.TrimSpace(sh)
+}
+
+// CheckNames refuses values keys and keep names that name nothing the
+// model knows: none of its classes, nor a material or shape of them. Such
+// a name is most often a typo ("gold/rnig", "silvr"), which would change
+// the expected value without a word; the message suggests the nearest
+// known name. Hazards are not checked: a hazard the history has never met
+// is still one. A model of materials or of shapes alone knows only half
+// the names a values file may use, so for it only near misses of a known
+// name are refused.
+func (v *Values) CheckNames(source string, classes []string, label features.Label) error {
+	known := map[string]bool{}
+	for _, c := range classes {
+		m, s := features.SplitClass(c)
+		known[c], known[m], known[s] = true, true, true
+	}
+	names := make([]string, 0, len(known))
+	for n := range known {
+		names = append(names, n)
+	}
+	slices.Sort(names)
+	check := func(what, n string) error {
+		if known[n] {
+			return nil
+		}
+		near, d := nearestName(n, names)
+		if label != features.LabelBoth && d > 2 {
+			return nil
+		}
+		msg := fmt.Sprintf("%s %q names no class, material or shape of this model", what, n)
+		if d <= 2 {
+			msg += fmt.Sprintf("; did you mean %q?", near)
+		} else {
+			msg += fmt.Sprintf(" (it knows %s)", strings.Join(names, ", "))
+		}
+		return fmt.Errorf("%s: %w: %s", source, ErrValues, msg)
+	}
+	keys := make([]string, 0, len(v.Value))
+	for k := range v.Value {
+		keys = append(keys, k)
+	}
+	slices.Sort(keys)
+	for _, k := range keys {
+		if err := check("value key", k); err != nil {
+			return err
+		}
+	}
+	for _, k := range v.Keep {
+		if err := check("keep name", k); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// nearestName is the name at the least edit distance from s (Levenshtein,
+// "Binary codes capable of correcting deletions, insertions, and
+// reversals", 1966), the first in order on a tie.
+func nearestName(s string, names []string) (string, int) {
+	best, bd := "", math.MaxInt
+	for _, n := range names {
+		if d := editDistance(s, n); d < bd {
+			best, bd = n, d
+		}
+	}
+	return best, bd
+}
+
+func editDistance(a, b string) int {
+	ra, rb := []rune(a), []rune(b)
+	prev := make([]int, len(rb)+1)
+	cur := make([]int, len(rb)+1)
+	for j := range prev {
+		prev[j] = j
+	}
+	for i := 1; i <= len(ra); i++ {
+		cur[0] = i
+		for j := 1; j <= len(rb); j++ {
+			sub := prev[j-1]
+			if ra[i-1] != rb[j-1] {
+				sub++
+			}
+			cur[j] = min(prev[j]+1, cur[j-1]+1, sub)
+		}
+		prev, cur = cur, prev
+	}
+	return prev[len(rb)]
 }
 
 // ValueOf is a class's worth: its own entry, else its material's, else its

@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"github.com/spade-detect/spade/datasets"
+	"github.com/spade-detect/spade/features"
 )
 
 func TestDemoValuesFile(t *testing.T) {
@@ -68,5 +69,62 @@ func TestParseInline(t *testing.T) {
 		if _, err := ParseInline(bad); !errors.Is(err, ErrInline) {
 			t.Errorf("%q: error %v", bad, err)
 		}
+	}
+}
+
+func TestValuesKeysDifferingOnlyInCaseAreRefused(t *testing.T) {
+	// Folded while ranging over a map, such keys made the verdict change
+	// from run to run; now the same file always gives the same answer.
+	for range 20 {
+		_, err := ParseValues("v.toml", "[value]\nGold = 300\ngold = 0\n")
+		if err == nil || !strings.Contains(err.Error(), `keys "Gold" and "gold" differ only in case or spacing`) {
+			t.Fatalf("error %v", err)
+		}
+	}
+	if _, err := ParseValues("v.toml", "[value]\n\"gold / ring\" = 3\n\"gold/ring\" = 4\n"); err == nil {
+		t.Error("keys differing in spacing accepted")
+	}
+}
+
+func TestValuesTyposAreRefusedWithASuggestion(t *testing.T) {
+	classes := []string{"gold/ring", "iron/nail", "silver/coin"}
+	cases := []struct {
+		text, want string
+	}{
+		{"[value]\n\"gold/rnig\" = 300\n", `value key "gold/rnig" names no class, material or shape of this model; did you mean "gold/ring"?`},
+		{"keep = [\"silvr\"]\n", `keep name "silvr" names no class, material or shape of this model; did you mean "silver"?`},
+		{"[value]\nplatinum = 900\n", `(it knows coin, gold, gold/ring, iron, iron/nail, nail, ring, silver, silver/coin)`},
+	}
+	for _, c := range cases {
+		v, err := ParseValues("v.toml", c.text)
+		if err != nil {
+			t.Fatal(err)
+		}
+		err = v.CheckNames("v.toml", classes, features.LabelBoth)
+		if err == nil || !errors.Is(err, ErrValues) || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%q: error %v, want %q", c.text, err, c.want)
+		}
+	}
+	good, _ := ParseValues("v.toml", "keep = [\"Iron/Nail\"]\n[value]\ngold = 1\ncoin = 2\n\"silver/coin\" = 3\n")
+	if err := good.CheckNames("v.toml", classes, features.LabelBoth); err != nil {
+		t.Errorf("good names refused: %v", err)
+	}
+	// A material-only model does not know shapes: only near misses fail.
+	mat, _ := ParseValues("v.toml", "[value]\ncoin = 2\nsilvr = 3\n")
+	err := mat.CheckNames("v.toml", []string{"gold", "silver"}, features.LabelMaterial)
+	if err == nil || !strings.Contains(err.Error(), `did you mean "silver"`) {
+		t.Errorf("material model: %v", err)
+	}
+}
+
+func TestHazardThresholdChecks(t *testing.T) {
+	for _, text := range []string{"hazard_threshold = 1\n", "hazard_threshold = 0.99\n", "hazard_threshold = -0.2\n", "hazard_threshold = 0\n", "hazard_threshold = nan\n"} {
+		if _, err := ParseValues("v.toml", text); err == nil || !strings.Contains(err.Error(), "hazard_threshold is a fraction: 0.01 means 1 %") {
+			t.Errorf("%q: %v", text, err)
+		}
+	}
+	v, err := ParseValues("v.toml", "cost_per_dig = 3\n")
+	if err != nil || v.HazardThreshold != DefaultHazardThreshold {
+		t.Errorf("default threshold %v, %v", v.HazardThreshold, err)
 	}
 }

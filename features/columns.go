@@ -227,3 +227,13 @@ func checkDate(s string) error {
 
 // normaliseLabel case-folds and trims a material or shape.
 func normaliseLabel(s string) string { return strings.ToLower(strings.TrimSpace(s)) }
+
+// checkLabel refuses a "/" in a material or shape: spade writes a joint
+// class as "material/shape", so "gold/plated" in the material column would
+// split into the wrong material and shape, and be valued as them.
+func checkLabel(s string) error {
+	if strings.Contains(s, "/") {
+		return cause(ErrLabelSlash, "got %q: spade joins material and shape with \"/\"; write it another way, such as %q", s, strings.ReplaceAll(s, "/", "-"))
+	}
+	return nil
+}

@@ -84,9 +84,15 @@ func (c *csvSource) row(line int, rec []string) (Dig, error) {
 	d := Dig{Line: line, DepthCM: math.NaN(), DisplayID: math.NaN()}
 	d.ID, _ = text(colDig)
 	d.Site, _ = text(colSite)
-	m, _ := text(colMaterial)
-	sh, _ := text(colShape)
+	m, mi := text(colMaterial)
+	sh, si := text(colShape)
 	d.Material, d.Shape = normaliseLabel(m), normaliseLabel(sh)
+	if err := checkLabel(d.Material); err != nil {
+		return d, perr(mi, err)
+	}
+	if err := checkLabel(d.Shape); err != nil {
+		return d, perr(si, err)
+	}
 	if v, i := text(colDate); v != "" {
 		if err := checkDate(v); err != nil {
 			return d, perr(i, err)

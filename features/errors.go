@@ -21,6 +21,7 @@ var (
 	ErrDuplicateDig  = errors.New("duplicate dig id")
 	ErrBadDate       = errors.New("not a date (want YYYY-MM-DD)")
 	ErrUnlabelled    = errors.New("unlabelled")
+	ErrLabelSlash    = errors.New(`"/" inside a label`)
 )
 
 // ParseError is a rejected value, row or header, with its position.

@@ -77,9 +77,15 @@ func (j *jsonlSource) row(b []byte) (Dig, error) {
 		case "material":
 			d.Material, err = jsonText(raw, false)
 			d.Material = normaliseLabel(d.Material)
+			if err == nil {
+				err = checkLabel(d.Material)
+			}
 		case "shape":
 			d.Shape, err = jsonText(raw, false)
 			d.Shape = normaliseLabel(d.Shape)
+			if err == nil {
+				err = checkLabel(d.Shape)
+			}
 		case "depth_cm":
 			if d.DepthCM, err = jsonNumber(raw); err == nil && d.DepthCM < 0 {
 				err = cause(ErrNegative, "got %g", d.DepthCM)

@@ -90,6 +90,8 @@ func TestBadInputs(t *testing.T) {
 		{"duplicate-column.csv", ReadOptions{}, ErrHeader, "duplicate-column.csv:1: phase_5k: bad header"},
 		{"bad-frequency.csv", ReadOptions{}, ErrHeader, "bad-frequency.csv:1: phase_abc: bad header"},
 		{"negative-depth.csv", ReadOptions{}, ErrNegative, "negative-depth.csv:2: depth_cm: must be >= 0"},
+		{"slash-label.csv", ReadOptions{}, ErrLabelSlash, `slash-label.csv:3: material: "/" inside a label, got "gold/plated"`},
+		{"slash-label.jsonl", ReadOptions{}, ErrLabelSlash, `slash-label.jsonl:1: shape: "/" inside a label`},
 		{"unlabelled.csv", ReadOptions{Require: LabelBoth}, ErrUnlabelled, "unlabelled.csv:2: material: unlabelled"},
 		{"partial-ground.csv", ReadOptions{}, ErrFreqSet, "partial-ground.csv:2: ground: frequency set differs"},
 		{"freq-set.jsonl", ReadOptions{}, ErrFreqSet, "freq-set.jsonl:2: readings: frequency set differs"},

@@ -96,6 +96,9 @@ func runClassify(ctx context.Context, g *globalOptions, opts classifyOptions, ar
 	if err != nil {
 		return err
 	}
+	if err := opts.values.check(vals, bundle.Classes, bundle.Label); err != nil {
+		return err
+	}
 	c := classify.New(bundle, vals)
 	next, name, closer, err := readingSource(g, opts, args)
 	if err != nil {

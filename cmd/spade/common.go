@@ -82,6 +82,18 @@ func (v *valuesFlags) load() (*classify.Values, error) {
 	return vals, nil
 }
 
+// check refuses values names that name nothing the model or log knows.
+func (v *valuesFlags) check(vals *classify.Values, classes []string, label features.Label) error {
+	if vals == nil {
+		return nil
+	}
+	source := v.file
+	if source == "" {
+		source = "--keep"
+	}
+	return vals.CheckNames(source, classes, label)
+}
+
 // today is the model's date: SOURCE_DATE_EPOCH when set (reproducible
 // builds' convention), else now.
 func today() time.Time {

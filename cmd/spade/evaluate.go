@@ -80,6 +80,9 @@ func runEvaluate(ctx context.Context, g *globalOptions, opts evaluateOptions, ar
 	if err != nil {
 		return err
 	}
+	if err := opts.values.check(vals, ds.Classes, kind); err != nil {
+		return err
+	}
 	ev, err := evaluateDataset(ctx, g, ds, opts.folds, opts.trees, opts.seed, vals, opts.format.json())
 	if err != nil {
 		return err

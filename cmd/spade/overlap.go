@@ -98,6 +98,9 @@ func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args
 	if err != nil {
 		return err
 	}
+	if err := opts.values.check(vals, ds.Classes, kind); err != nil {
+		return err
+	}
 	var probs [][]float64
 	if opts.model != "" {
 		if probs, err = modelProbs(opts.model, kind, log, ds); err != nil {
