@@ -33,6 +33,7 @@ type Classifier struct {
 	probs     []float64
 	nb        []Neighbour
 	screenBuf []float64
+	warnings  []string
 }
 
 // New prepares a classifier: the whitened training space and the training
@@ -47,13 +48,14 @@ func New(b *train.Bundle, values *Values) *Classifier {
 		c.hazard = append(c.hazard, values.IsHazard(cl))
 		c.worth = append(c.worth, values.ValueOf(cl))
 	}
+	c.warnings = c.Warnings()
 	return c
 }
 
 // Clone is a classifier sharing this one's model, space and reference
 // scores (read only) with scratch space of its own, for another goroutine.
 func (c *Classifier) Clone() *Classifier {
-	return &Classifier{bundle: c.bundle, values: c.values, space: c.space, reference: c.reference, hazard: c.hazard, worth: c.worth}
+	return &Classifier{bundle: c.bundle, values: c.values, space: c.space, reference: c.reference, hazard: c.hazard, worth: c.worth, warnings: c.warnings}
 }
 
 // Warnings are remarks about the model and values as a whole, for the user
@@ -63,7 +65,7 @@ func (c *Classifier) Warnings() []string {
 	if !c.HazardAvailable() {
 		w = append(w, UnavailableNote(c.bundle, c.values))
 	}
-	return w
+	return append(w, train.HistoryNotes(c.bundle.Summary.Digs, c.bundle.Summary.ClassCounts)...)
 }
 
 // HazardAvailable reports whether the model can warn of ordnance at all:
@@ -144,10 +146,13 @@ const (
 	VerdictNone     = "no verdict"
 )
 
+// NoValuesNote says why a reading has no dig verdict.
+const NoValuesNote = "no values file, so no dig verdict: give --values FILE with what finds are worth to you (see the README); the hazard check still applies, with any shape \"ordnance\" as the hazard"
+
 // Decision is the dig decision by the user's values.
 type Decision struct {
 	ExpectedValue float64 `json:"expected_value"` // Σ p·value - cost per dig
-	Verdict       string  `json:"verdict"`        // "dig", "skip", "unsure" or "do not dig"
+	Verdict       string  `json:"verdict"`        // "dig", "skip", "unsure", "do not dig" or "no verdict"
 	Note          string  `json:"note,omitempty"`
 }
 
@@ -165,6 +170,9 @@ type Result struct {
 	Hazard        HazardCheck        `json:"hazard_check"`
 	Neighbours    []Neighbour        `json:"neighbours"`
 	Decision      Decision           `json:"decision"`
+	// Warnings are the model's own (Classifier.Warnings), repeated in
+	// every result so that no reader of one result misses them.
+	Warnings []string `json:"warnings,omitempty"`
 }
 
 // ErrNotFinite is the cause when a reading's features are not all finite
@@ -189,7 +197,7 @@ func (c *Classifier) Classify(d *features.Dig) (*Result, error) {
 	c.std = c.space.standardise(c.vec, c.std)
 	c.nb = c.space.nearest(c.std, max(noveltyK, Neighbours), -1, c.nb)
 
-	r := &Result{Dig: d.ID, Probabilities: make(map[string]float64, len(b.Classes))}
+	r := &Result{Dig: d.ID, Probabilities: make(map[string]float64, len(b.Classes)), Warnings: c.warnings}
 	var hazardP, ev float64
 	var hazards []string
 	for k, cl := range b.Classes {
@@ -238,6 +246,9 @@ func (c *Classifier) Classify(d *features.Dig) (*Result, error) {
 		r.Decision.Verdict = VerdictDoNotDig
 	case r.Novelty.Unfamiliar:
 		r.Decision.Verdict = VerdictUnsure
+	case !c.values.Given():
+		r.Decision.Verdict = VerdictNone
+		r.Decision.Note = NoValuesNote
 	case r.Decision.ExpectedValue > 0:
 		r.Decision.Verdict = VerdictDig
 	default:

@@ -323,21 +323,40 @@ func BenchmarkClassifyReading(b *testing.B) {
 func errorsAs(err error, target any) bool { return errors.As(err, target) }
 
 func TestOneDigHistoryNeverNaN(t *testing.T) {
-	// A one-dig history has no neighbour to leave out: its novelty
-	// reference is empty, and every reading must then be unfamiliar (fail
-	// safe), with finite numbers everywhere.
+	// A one-dig history cannot be trained (one class); the smallest
+	// history, two digs of two classes, has one neighbour each to compare
+	// with, and an empty novelty reference must still give no NaN: every
+	// reading unfamiliar (fail safe).
 	_, log := demoModel(t)
-	one := &features.Log{Name: "one", Freqs: log.Freqs, Digs: log.Digs[:1], HasDisplayID: true}
+	var two []features.Dig
+	for _, d := range log.Digs {
+		if len(two) == 0 || (len(two) == 1 && d.Class(features.LabelBoth) != two[0].Class(features.LabelBoth)) {
+			two = append(two, d)
+		}
+	}
+	one := &features.Log{Name: "two", Freqs: log.Freqs, Digs: two[:1], HasDisplayID: true}
+	spec0 := features.NewSpec(one.Freqs, true)
+	if _, err := train.TrainBundle(context.Background(), one, spec0, train.TrainOptions{NoScreen: true}); !errors.Is(err, train.ErrTooFewClasses) {
+		t.Errorf("one-class history: %v", err)
+	}
+	one.Digs = two
 	spec := features.NewSpec(one.Freqs, true)
 	b, err := train.TrainBundle(context.Background(), one, spec, train.TrainOptions{Forest: train.Options{Trees: 3, Seed: 1}, NoScreen: true})
 	if err != nil {
 		t.Fatal(err)
 	}
 	c := New(b, nil)
+	if w := strings.Join(c.Warnings(), " "); !strings.Contains(w, "small history: 2 digs") {
+		t.Errorf("warnings %q", w)
+	}
+	c.reference = nil
 	for _, d := range demoReadings(t) {
 		r, err := c.Classify(&d)
 		if err != nil {
 			t.Fatal(err)
+		}
+		if len(r.Warnings) == 0 {
+			t.Errorf("%s: the result does not carry the small-history warning", d.ID)
 		}
 		n := r.Novelty
 		if math.IsNaN(n.Score) || math.IsNaN(n.Percentile) || !n.Unfamiliar || r.Decision.Verdict == VerdictDig {
@@ -365,5 +384,25 @@ func TestNoProbabilityIsExactlyZeroOrOne(t *testing.T) {
 				t.Errorf("%s: p(%s) = %v", d.ID, cl, p)
 			}
 		}
+	}
+}
+
+func TestNoValuesNoVerdictButTheHazardCheck(t *testing.T) {
+	b, _ := demoModel(t)
+	c := New(b, nil)
+	seen := map[string]bool{}
+	for _, d := range demoReadings(t) {
+		r, _ := c.Classify(&d)
+		seen[r.Decision.Verdict] = true
+		if r.Decision.Verdict == VerdictDig || r.Decision.Verdict == VerdictSkip {
+			t.Errorf("%s: verdict %q without a values file", d.ID, r.Decision.Verdict)
+		}
+		if r.Decision.Verdict == VerdictNone && r.Decision.Note != NoValuesNote {
+			t.Errorf("%s: no verdict, note %q", d.ID, r.Decision.Note)
+		}
+	}
+	// The default hazards still stop the demo's projectile.
+	if !seen[VerdictNone] || !seen[VerdictDoNotDig] {
+		t.Errorf("verdicts %v", seen)
 	}
 }

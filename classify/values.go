@@ -32,7 +32,14 @@ type Values struct {
 	Hazards         []string           `toml:"hazards"`
 	Keep            []string           `toml:"keep"`
 	Value           map[string]float64 `toml:"value"`
+	// source is the values file's name; empty for DefaultValues, which
+	// give no dig verdict.
+	source string
 }
+
+// Given reports whether the values come from a values file: without one
+// there is no worth to weigh, so no dig verdict.
+func (v *Values) Given() bool { return v.source != "" }
 
 // DefaultHazardThreshold is the caution threshold when none is given.
 const DefaultHazardThreshold = 0.01
@@ -73,6 +80,7 @@ func ParseValues(name, text string) (*Values, error) {
 	v := DefaultValues()
 	v.CostPerDig = 0
 	v.Hazards = nil
+	v.source = name
 	md, err := toml.Decode(text, v)
 	if err != nil {
 		var pe toml.ParseError

@@ -57,6 +57,11 @@ type Evaluation struct {
 	Seed         uint64     `json:"seed"`
 	Digs         int        `json:"digs"`
 	Classes      []string   `json:"classes"`
+	// Warnings are what the user must know about these figures: a small
+	// history, thin classes, folds lowered to fit them.
+	Warnings []string `json:"warnings"`
+	// OneNumberVerdict is Verdict's sentence; empty when spade does better.
+	OneNumberVerdict string `json:"one_number_verdict,omitempty"`
 	// Screen is the ordnance screen's evaluation (EvaluateScreen), set by
 	// the caller; nil when it was not made.
 	Screen *ScreenEvaluation `json:"ordnance_screen"`
@@ -77,10 +82,29 @@ func CrossValidate(ctx context.Context, ds *Dataset, o EvalOptions) (*Evaluation
 	}
 	fo := o.Forest.withDefaults(len(ds.Names))
 	K := len(ds.Classes)
+	var warnings []string
+	// Stratified folds need a dig of every class in every fold: with
+	// fewer digs in the smallest class than folds, the folds are lowered to
+	// its count (but not below 2) and the report says so.
+	counts := ds.ClassCounts()
+	least := slices.Min(counts)
+	if least < o.Folds && o.Folds > 2 {
+		was := o.Folds
+		o.Folds = max(2, least)
+		warnings = append(warnings, fmt.Sprintf("folds lowered from %d to %d: the smallest class has %d digs", was, o.Folds, least))
+	}
+	if least < 2 {
+		warnings = append(warnings, "a class with a single dig cannot be both learnt and held out: its figures are those of a class the model never saw")
+	}
+	cc := map[string]int{}
+	for k, n := range counts {
+		cc[ds.Classes[k]] = n
+	}
+	warnings = append(warnings, HistoryNotes(n, cc)...)
 	fold := StratifiedFolds(ds.Y, K, o.Folds, o.Seed)
 	axis := BaselineAxis(ds.Names)
 	ev := &Evaluation{Folds: o.Folds, Seed: o.Seed, Digs: n, Classes: ds.Classes, BaselineAxis: ds.Names[axis],
-		Probs: make([][]float64, n), BaselineProbs: make([][]float64, n)}
+		Probs: make([][]float64, n), BaselineProbs: make([][]float64, n), Warnings: warnings}
 	total := fo.Trees * o.Folds
 	for k := range o.Folds {
 		var trainIdx, testIdx []int
@@ -119,6 +143,7 @@ func CrossValidate(ctx context.Context, ds *Dataset, o EvalOptions) (*Evaluation
 	}
 	ev.Model = Score(ds.Classes, ds.Y, ev.Probs)
 	ev.Baseline = Score(ds.Classes, ds.Y, ev.BaselineProbs)
+	ev.OneNumberVerdict = ev.Verdict()
 	if len(o.Keepers) > 0 {
 		ev.DigSaving = digSaving(ds, o.Keepers, o.Hazards, ev.Probs, ev.BaselineProbs)
 	}
@@ -159,4 +184,16 @@ func digSaving(ds *Dataset, keepers, hazards []string, model, base [][]float64) 
 	d.Model = SavingCurve(ms, keeperRow, trashRow, SavingLevels)
 	d.Baseline = SavingCurve(bs, keeperRow, trashRow, SavingLevels)
 	return d
+}
+
+// Verdict is one plain sentence when the detector's own number does as
+// well as spade or better on this log (by held-out log-loss, the measure
+// that rewards honest probabilities): then spade's extra columns are not
+// earning their keep here, and the user should know. Empty otherwise.
+func (e *Evaluation) Verdict() string {
+	if e.Model.LogLoss < e.Baseline.LogLoss && e.Model.Accuracy >= e.Baseline.Accuracy {
+		return ""
+	}
+	return fmt.Sprintf("Verdict: on this log the one number (%s) does as well as spade or better (log-loss %.3f against spade's %.3f, accuracy %.3f against %.3f). Trust your detector's number here, and log more frequencies or more digs before leaning on spade.",
+		e.BaselineAxis, e.Baseline.LogLoss, e.Model.LogLoss, e.Baseline.Accuracy, e.Model.Accuracy)
 }

@@ -3,7 +3,9 @@ package train
 import (
 	"context"
 	"errors"
+	"fmt"
 	"math"
+	"strings"
 	"time"
 
 	"github.com/spade-detect/spade/features"
@@ -62,6 +64,9 @@ func (b *Bundle) AddScreen(ctx context.Context, log *features.Log, o ScreenOptio
 
 // TrainDataset is TrainBundle on an extracted table.
 func TrainDataset(ctx context.Context, ds *Dataset, spec *features.FeatureSpec, o TrainOptions) (*Bundle, error) {
+	if len(ds.Classes) < 2 {
+		return nil, fmt.Errorf("%w: the history has only %s; label the trash you dig too", ErrTooFewClasses, strings.Join(ds.Classes, ""))
+	}
 	fo := o.Forest.withDefaults(len(ds.Names))
 	forest, oob, err := Grow(ctx, ds, fo)
 	if err != nil {

@@ -365,6 +365,8 @@ func verdictLine(r *classify.Result) string {
 	switch d.Verdict {
 	case "unsure":
 		return fmt.Sprintf("UNSURE: looks most like %s (%s), but see below", r.Top.Class, probText(r.Top.Probability, 0))
+	case classify.VerdictNone:
+		return fmt.Sprintf("no verdict: looks most like %s (%s); give --values for one", r.Top.Class, probText(r.Top.Probability, 0))
 	case "dig":
 		return fmt.Sprintf("DIG: %s %s, expected value %+.1f by your values", r.Top.Class, probText(r.Top.Probability, 0), d.ExpectedValue)
 	default:

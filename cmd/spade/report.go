@@ -33,6 +33,12 @@ func trunc(s string, n int) string {
 func writeEvaluation(w io.Writer, ev *train.Evaluation, label string) {
 	fmt.Fprintf(w, "Cross-validated on %d digs: %d folds (stratified), seed %d, %d classes (%s).\n\n",
 		ev.Digs, ev.Folds, ev.Seed, len(ev.Classes), label)
+	for _, n := range ev.Warnings {
+		fmt.Fprint(w, wrap("note: "+n+".", 78, ""))
+	}
+	if len(ev.Warnings) > 0 {
+		fmt.Fprintln(w)
+	}
 	m, b := ev.Model, ev.Baseline
 	fmt.Fprintf(w, "%-26s %10s %18s\n", "", "spade", "one number")
 	fmt.Fprintf(w, "%-26s %10s %18s\n", "", "", "("+ev.BaselineAxis+")")
@@ -44,6 +50,9 @@ func writeEvaluation(w io.Writer, ev *train.Evaluation, label string) {
 	row("log-loss", m.LogLoss, b.LogLoss, "lower is better")
 	row("Brier score", m.Brier, b.Brier, "")
 	row("calibration error (ECE)", m.ECE, b.ECE, "")
+	if v := ev.Verdict(); v != "" {
+		fmt.Fprint(w, wrap(v, 78, ""))
+	}
 	if d := ev.DigSaving; d != nil {
 		fmt.Fprintf(w, "\nDig saving: trash digs you could have skipped, keeping your keepers\n")
 		fmt.Fprintf(w, "(%d keeper and %d trash digs)\n", d.KeeperDigs, d.TrashDigs)

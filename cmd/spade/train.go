@@ -88,12 +88,15 @@ func runTrain(ctx context.Context, g *globalOptions, opts trainOptions, args []s
 		enc := json.NewEncoder(g.stdout)
 		enc.SetIndent("", "  ")
 		return enc.Encode(map[string]any{"model": opts.output, "summary": bundle.Summary, "classes": bundle.Classes, "freqs": spec.Freqs,
-			"hazard_check": hazardStatus(bundle)})
+			"hazard_check": hazardStatus(bundle), "warnings": train.HistoryNotes(bundle.Summary.Digs, bundle.Summary.ClassCounts)})
 	}
 	s := bundle.Summary
 	fmt.Fprintf(g.stdout, "Trained on %d digs, %d classes (%s), %d trees; wrote %s\n", s.Digs, len(bundle.Classes), kind, s.Trees, opts.output)
 	fmt.Fprintf(g.stdout, "Out-of-bag: accuracy %.3f, balanced accuracy %.3f, log-loss %.3f\n", s.OutOfBag.Accuracy, s.OutOfBag.BalancedAccuracy, s.OutOfBag.LogLoss)
 	fmt.Fprint(g.stdout, wrap(hazardStatus(bundle).Text, 78, ""))
+	for _, n := range train.HistoryNotes(bundle.Summary.Digs, bundle.Summary.ClassCounts) {
+		fmt.Fprint(g.stdout, wrap("note: "+n+".", 78, ""))
+	}
 	fmt.Fprintln(g.stdout, "For the full report next to the single-number baseline: spade evaluate LOG")
 	return nil
 }
