@@ -11,6 +11,12 @@ type SavingPoint struct {
 	Keep         float64 `json:"keep"`
 	TrashSkipped float64 `json:"trash_skipped"`
 	Threshold    float64 `json:"threshold"`
+	// The same in digs: keepers lost (scored below the threshold) of all
+	// keepers, and trash digs skipped of all trash.
+	KeepersLost int `json:"keepers_lost"`
+	Keepers     int `json:"keepers"`
+	TrashSkips  int `json:"trash_skipped_digs"`
+	Trash       int `json:"trash"`
 }
 
 // DigSaving compares the dig-saving curves of the model and the baseline on
@@ -48,6 +54,7 @@ func SavingCurve(score []float64, keeper, trash []bool, levels []float64) []Savi
 	out := make([]SavingPoint, len(levels))
 	for j, level := range levels {
 		out[j].Keep = level
+		out[j].Keepers, out[j].Trash = len(ks), len(ts)
 		if len(ks) == 0 || len(ts) == 0 {
 			continue
 		}
@@ -62,6 +69,12 @@ func SavingCurve(score []float64, keeper, trash []bool, levels []float64) []Savi
 		}
 		out[j].Threshold = thr
 		out[j].TrashSkipped = float64(skipped) / float64(len(ts))
+		out[j].TrashSkips = skipped
+		for _, s := range ks {
+			if s < thr {
+				out[j].KeepersLost++
+			}
+		}
 	}
 	return out
 }

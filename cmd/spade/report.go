@@ -57,9 +57,12 @@ func writeEvaluation(w io.Writer, ev *train.Evaluation, label string) {
 		fmt.Fprintf(w, "\nDig saving: trash digs you could have skipped, keeping your keepers\n")
 		fmt.Fprintf(w, "(%d keeper and %d trash digs)\n", d.KeeperDigs, d.TrashDigs)
 		fmt.Fprint(w, wrap("keepers: "+strings.Join(d.Keepers, ", "), 78, "  "))
-		fmt.Fprintf(w, "  %-22s %12s %18s\n", "keeping", "spade", "one number")
+		fmt.Fprintf(w, "  %-18s %27s %27s\n", "keeping", "spade", "one number")
+		cell := func(p train.SavingPoint) string {
+			return fmt.Sprintf("%s skip, lost %d of %d", pct(p.TrashSkipped), p.KeepersLost, p.Keepers)
+		}
 		for i, p := range d.Model {
-			fmt.Fprintf(w, "  %-22s %12s %18s\n", fmt.Sprintf("%.0f%% of keepers", 100*p.Keep), pct(p.TrashSkipped)+" skip", pct(d.Baseline[i].TrashSkipped)+" skip")
+			fmt.Fprintf(w, "  %-18s %27s %27s\n", fmt.Sprintf("%.0f%% of keepers", 100*p.Keep), cell(p), cell(d.Baseline[i]))
 		}
 		if len(d.Hazards) > 0 {
 			fmt.Fprintf(w, "  (hazard classes %s are never to be dug and are left out)\n", strings.Join(d.Hazards, ", "))
