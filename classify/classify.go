@@ -146,6 +146,20 @@ const (
 	VerdictNone     = "no verdict"
 )
 
+// Learn is uncertainty sampling (Lewis & Gale, "A sequential algorithm for
+// training text classifiers", SIGIR 1994): the digs whose class the model
+// is least sure of are those whose labels teach it most. Score is one less
+// the top class's probability; Worth marks a score of at least LearnAt
+// on a reading with no caution (a hazard is never dug to learn).
+type Learn struct {
+	Score float64 `json:"score"`
+	Worth bool    `json:"worth"`
+}
+
+// LearnAt is the least-confidence score from which a dig is worth making
+// for what it teaches: the top class under a half.
+const LearnAt = 0.5
+
 // NoValuesNote says why a reading has no dig verdict.
 const NoValuesNote = "no values file, so no dig verdict: give --values FILE with what finds are worth to you (see the README); the hazard check still applies, with any shape \"ordnance\" as the hazard"
 
@@ -170,6 +184,8 @@ type Result struct {
 	Hazard        HazardCheck        `json:"hazard_check"`
 	Neighbours    []Neighbour        `json:"neighbours"`
 	Decision      Decision           `json:"decision"`
+	// Learn says how much the reading's answer would teach the model.
+	Learn Learn `json:"learn"`
 	// Warnings are the model's own (Classifier.Warnings), repeated in
 	// every result so that no reader of one result misses them.
 	Warnings []string `json:"warnings,omitempty"`
@@ -237,6 +253,8 @@ func (c *Classifier) Classify(d *features.Dig) (*Result, error) {
 		}
 		r.Caution = &Caution{Tier: r.Hazard.Tier, Probability: r.Hazard.Probability, Classes: hazards, Message: msg}
 	}
+	r.Learn.Score = 1 - r.Top.Probability
+	r.Learn.Worth = r.Learn.Score >= LearnAt && r.Caution == nil
 	r.Decision.ExpectedValue = ev - c.values.CostPerDig
 	// Fail safe: a caution is always "do not dig", and an unfamiliar
 	// reading is never called a dig: the history has nothing like it, so

@@ -257,7 +257,7 @@ func (o *resultWriter) write(r *classify.Result) error {
 				fmt.Fprintf(o.w, "# %s\n", w)
 			}
 			o.cw = csv.NewWriter(o.w)
-			header := []string{"dig", "caution", "hazard_check", "hazard_probability", "history_hazard", "screen_score", "top_class", "top_probability", "verdict", "expected_value", "novelty_percentile", "unfamiliar", "nearest_dig", "nearest_class", "nearest_distance"}
+			header := []string{"dig", "caution", "hazard_check", "hazard_probability", "history_hazard", "screen_score", "top_class", "top_probability", "verdict", "expected_value", "novelty_percentile", "unfamiliar", "dig_to_learn", "nearest_dig", "nearest_class", "nearest_distance"}
 			for _, c := range o.classes {
 				header = append(header, "p_"+c)
 			}
@@ -269,7 +269,7 @@ func (o *resultWriter) write(r *classify.Result) error {
 			check = "unavailable"
 		}
 		rec := []string{r.Dig, h.Tier, check, ff(h.Probability), ff(h.History), ff(h.Screen), r.Top.Class, ff(r.Top.Probability), r.Decision.Verdict, ff(r.Decision.ExpectedValue),
-			ff(r.Novelty.Percentile), strconv.FormatBool(r.Novelty.Unfamiliar)}
+			ff(r.Novelty.Percentile), strconv.FormatBool(r.Novelty.Unfamiliar), strconv.FormatBool(r.Learn.Worth)}
 		if len(r.Neighbours) > 0 {
 			rec = append(rec, r.Neighbours[0].Dig, r.Neighbours[0].Class, ff(r.Neighbours[0].Distance))
 		} else {
@@ -337,6 +337,9 @@ func writeResultTable(w io.Writer, r *classify.Result, top int) {
 		fmt.Fprint(w, wrap(hazardLine(r), 78, "     "))
 	}
 	fmt.Fprintf(w, "     novelty: %s percentile of your digs\n", ordinal(int(r.Novelty.Percentile)))
+	if r.Learn.Worth {
+		fmt.Fprint(w, wrap(fmt.Sprintf("worth digging to learn: the model is unsure (top class %s), so what comes out would teach it most", probText(r.Top.Probability, 0)), 78, "     "))
+	}
 	var nb []string
 	for _, n := range r.Neighbours {
 		nb = append(nb, fmt.Sprintf("%s %s (%s, %.2f)", n.Dig, n.Class, n.Date, n.Distance))
