@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math/rand/v2"
 	"slices"
+	"strings"
 )
 
 // StratifiedFolds assigns each row a fold in [0, k) so that every class is
@@ -39,6 +40,13 @@ type EvalOptions struct {
 	Forest  Options
 	Keepers []string // classes worth digging, for the dig-saving curve
 	Hazards []string // classes never to be dug
+	// Groups, when set, gives each row a group (a site, a day): folds then
+	// hold whole groups, so that no fold is tested on digs from a spot or
+	// a day it also learnt from.
+	Groups []string
+	// LearningCurve adds the held-out figures of forests grown on 25, 50
+	// and 75 % of each fold's training digs.
+	LearningCurve bool
 	// Raw leaves the forest's probabilities unshrunk, for comparison with
 	// other forests (scikit-learn's are raw).
 	Raw bool
@@ -60,6 +68,13 @@ type Evaluation struct {
 	// Warnings are what the user must know about these figures: a small
 	// history, thin classes, folds lowered to fit them.
 	Warnings []string `json:"warnings"`
+	// GroupedBy names what the folds were grouped by; empty for stratified.
+	GroupedBy string `json:"grouped_by,omitempty"`
+	// Learning is the learning curve, when asked for: accuracy and
+	// log-loss against the share of the history learnt from.
+	Learning []LearningPoint `json:"learning_curve,omitempty"`
+	// LearningVerdict says in one sentence whether more digs would help.
+	LearningVerdict string `json:"learning_verdict,omitempty"`
 	// OneNumberVerdict is Verdict's sentence; empty when spade does better.
 	OneNumberVerdict string `json:"one_number_verdict,omitempty"`
 	// Screen is the ordnance screen's evaluation (EvaluateScreen), set by
@@ -82,6 +97,7 @@ func CrossValidate(ctx context.Context, ds *Dataset, o EvalOptions) (*Evaluation
 	}
 	fo := o.Forest.withDefaults(len(ds.Names))
 	K := len(ds.Classes)
+	requested := o.Folds
 	var warnings []string
 	// Stratified folds need a dig of every class in every fold: with
 	// fewer digs in the smallest class than folds, the folds are lowered to
@@ -102,10 +118,31 @@ func CrossValidate(ctx context.Context, ds *Dataset, o EvalOptions) (*Evaluation
 	}
 	warnings = append(warnings, HistoryNotes(n, cc)...)
 	fold := StratifiedFolds(ds.Y, K, o.Folds, o.Seed)
+	if o.Groups != nil {
+		if len(o.Groups) != n {
+			panic("train: length mismatch")
+		}
+		var err error
+		if fold, o.Folds, err = GroupFolds(o.Groups, requested); err != nil {
+			return nil, err
+		}
+		warnings = warnings[:0]
+		warnings = append(warnings, HistoryNotes(n, cc)...)
+	}
 	axis := BaselineAxis(ds.Names)
 	ev := &Evaluation{Folds: o.Folds, Seed: o.Seed, Digs: n, Classes: ds.Classes, BaselineAxis: ds.Names[axis],
 		Probs: make([][]float64, n), BaselineProbs: make([][]float64, n), Warnings: warnings}
-	total := fo.Trees * o.Folds
+	fractions := []float64{1}
+	if o.LearningCurve {
+		fractions = []float64{0.25, 0.5, 0.75, 1}
+	}
+	curve := make([][][]float64, len(fractions))
+	for j := range curve {
+		curve[j] = make([][]float64, n)
+	}
+	trainSizes := make([]int, len(fractions))
+	total := fo.Trees * o.Folds * len(fractions)
+	step := 0
 	for k := range o.Folds {
 		var trainIdx, testIdx []int
 		for i, f := range fold {
@@ -115,24 +152,46 @@ func CrossValidate(ctx context.Context, ds *Dataset, o EvalOptions) (*Evaluation
 				trainIdx = append(trainIdx, i)
 			}
 		}
-		trainDS, testDS := ds.Subset(trainIdx), ds.Subset(testIdx)
-		fopts := fo
-		fopts.Seed = o.Seed + uint64(k+1)*0x9e3779b97f4a7c15
-		if o.Progress != nil {
-			base := k * fo.Trees
-			fopts.Progress = func(done int) { o.Progress(base+done, total) }
-		}
-		forest, oob, err := Grow(ctx, trainDS, fopts)
-		if err != nil {
-			return nil, err
-		}
-		// The fold's shrinkage is fitted on its own training digs' out-of-bag
-		// predictions, as a model of the whole history's is.
-		shrink := FitShrinkage(trainDS.Y, oob, K)
-		probs := forest.PredictDataset(testDS)
-		if !o.Raw {
-			for _, p := range probs {
-				shrink.Apply(p)
+		testDS := ds.Subset(testIdx)
+		// A seeded order of the fold's training digs: each share of the
+		// learning curve learns from the first part of it.
+		perm := rand.New(rand.NewPCG(o.Seed, uint64(k)+0x1ea7)).Perm(len(trainIdx))
+		var probs [][]float64
+		var trainDS *Dataset
+		for j, frac := range fractions {
+			sub := trainIdx
+			if frac < 1 {
+				m := max(2, int(frac*float64(len(trainIdx))))
+				sub = make([]int, m)
+				for q := range m {
+					sub[q] = trainIdx[perm[q]]
+				}
+				slices.Sort(sub)
+			}
+			trainDS = ds.Subset(sub)
+			trainSizes[j] += len(sub)
+			fopts := fo
+			fopts.Seed = o.Seed + uint64(k+1)*0x9e3779b97f4a7c15
+			if o.Progress != nil {
+				base := step * fo.Trees
+				fopts.Progress = func(done int) { o.Progress(base+done, total) }
+			}
+			step++
+			forest, oob, err := Grow(ctx, trainDS, fopts)
+			if err != nil {
+				return nil, err
+			}
+			// The fold's shrinkage is fitted on its own training digs'
+			// out-of-bag predictions, as a model of the whole history's is.
+			shrink := FitShrinkage(trainDS.Y, oob, K)
+			probs = forest.PredictDataset(testDS)
+			if !o.Raw {
+				for _, p := range probs {
+					shrink.Apply(p)
+				}
+			}
+			for q, i := range testIdx {
+				curve[j][i] = probs[q]
 			}
 		}
 		bl := FitBaseline(ds.Names[axis], trainDS.Cols[axis], trainDS.Y, K)
@@ -144,6 +203,13 @@ func CrossValidate(ctx context.Context, ds *Dataset, o EvalOptions) (*Evaluation
 	ev.Model = Score(ds.Classes, ds.Y, ev.Probs)
 	ev.Baseline = Score(ds.Classes, ds.Y, ev.BaselineProbs)
 	ev.OneNumberVerdict = ev.Verdict()
+	if o.LearningCurve {
+		for j, frac := range fractions {
+			m := Score(ds.Classes, ds.Y, curve[j])
+			ev.Learning = append(ev.Learning, LearningPoint{Share: frac, Digs: trainSizes[j] / o.Folds, Accuracy: m.Accuracy, LogLoss: m.LogLoss})
+		}
+		ev.LearningVerdict = learningVerdict(ev.Learning)
+	}
 	if len(o.Keepers) > 0 {
 		ev.DigSaving = digSaving(ds, o.Keepers, o.Hazards, ev.Probs, ev.BaselineProbs)
 	}
@@ -196,4 +262,64 @@ func (e *Evaluation) Verdict() string {
 	}
 	return fmt.Sprintf("Verdict: on this log the one number (%s) does as well as spade or better (log-loss %.3f against spade's %.3f, accuracy %.3f against %.3f). Trust your detector's number here, and log more frequencies or more digs before leaning on spade.",
 		e.BaselineAxis, e.Baseline.LogLoss, e.Model.LogLoss, e.Baseline.Accuracy, e.Model.Accuracy)
+}
+
+// LearningPoint is one point of the learning curve.
+type LearningPoint struct {
+	Share    float64 `json:"share"` // of each fold's training digs
+	Digs     int     `json:"digs"`  // mean training digs per fold
+	Accuracy float64 `json:"accuracy"`
+	LogLoss  float64 `json:"log_loss"`
+}
+
+// learningVerdict reads the last step of the curve: a log-loss still
+// falling by more than 0.02 from 75 % to all of the history means more
+// digs would still help (a threshold of ours, about the spread between
+// seeds on the demo history).
+func learningVerdict(c []LearningPoint) string {
+	if len(c) < 2 {
+		return ""
+	}
+	a, b := c[len(c)-2], c[len(c)-1]
+	if a.LogLoss-b.LogLoss > 0.02 || b.Accuracy-a.Accuracy > 0.01 {
+		return fmt.Sprintf("More digs would still help: from %d to %d digs the log-loss went from %.3f to %.3f and accuracy from %.3f to %.3f.", a.Digs, b.Digs, a.LogLoss, b.LogLoss, a.Accuracy, b.Accuracy)
+	}
+	return fmt.Sprintf("It has levelled off: from %d to %d digs the log-loss went from %.3f to %.3f and accuracy from %.3f to %.3f. More digs of the same kinds add little; digs the model is unsure of (classify marks them) may still.", a.Digs, b.Digs, a.LogLoss, b.LogLoss, a.Accuracy, b.Accuracy)
+}
+
+// GroupFolds assigns whole groups to folds: the groups, largest first (ties
+// by name), each to the fold with the fewest rows so far. With fewer
+// groups than folds, there is a fold per group. At least two groups are
+// needed.
+func GroupFolds(groups []string, k int) ([]int, int, error) {
+	size := map[string]int{}
+	for _, g := range groups {
+		size[g]++
+	}
+	if len(size) < 2 {
+		return nil, 0, fmt.Errorf("train: leave-group-out needs at least two groups, the log has %d", len(size))
+	}
+	names := make([]string, 0, len(size))
+	for g := range size {
+		names = append(names, g)
+	}
+	slices.SortFunc(names, func(a, b string) int {
+		if size[a] != size[b] {
+			return size[b] - size[a]
+		}
+		return strings.Compare(a, b)
+	})
+	k = min(k, len(names))
+	load := make([]int, k)
+	of := map[string]int{}
+	for _, g := range names {
+		f := slices.Index(load, slices.Min(load))
+		of[g] = f
+		load[f] += size[g]
+	}
+	fold := make([]int, len(groups))
+	for i, g := range groups {
+		fold[i] = of[g]
+	}
+	return fold, k, nil
 }

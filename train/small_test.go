@@ -48,3 +48,60 @@ func TestVerdictWhenTheOneNumberDoesBetter(t *testing.T) {
 		t.Errorf("spade better, verdict %q", v)
 	}
 }
+
+func TestGroupFolds(t *testing.T) {
+	groups := []string{"a", "a", "a", "b", "b", "c", "d", "a", "b"}
+	fold, k, err := GroupFolds(groups, 3)
+	if err != nil || k != 3 {
+		t.Fatal(k, err)
+	}
+	// Whole groups: every row of a group in one fold; largest first to the
+	// lightest fold: a(4)→0, b(3)→1, c(1)→2, d(1)→2.
+	want := map[string]int{"a": 0, "b": 1, "c": 2, "d": 2}
+	for i, g := range groups {
+		if fold[i] != want[g] {
+			t.Errorf("row %d (%s) in fold %d, want %d", i, g, fold[i], want[g])
+		}
+	}
+	if _, _, err := GroupFolds([]string{"x", "x"}, 5); err == nil {
+		t.Error("one group accepted")
+	}
+	if _, k, _ := GroupFolds([]string{"x", "y", "x"}, 5); k != 2 {
+		t.Errorf("two groups, %d folds", k)
+	}
+}
+
+func TestLearningCurve(t *testing.T) {
+	ds, _ := demo(t)
+	ev, err := CrossValidate(context.Background(), ds, EvalOptions{Folds: 5, Seed: 1, Forest: Options{Trees: 40}, LearningCurve: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(ev.Learning) != 4 || ev.Learning[3].Digs != 1200 || ev.Learning[0].Digs != 300 {
+		t.Fatalf("curve %+v", ev.Learning)
+	}
+	// The full share is the evaluation itself.
+	if last := ev.Learning[3]; last.LogLoss != ev.Model.LogLoss || last.Accuracy != ev.Model.Accuracy {
+		t.Errorf("100%% point %+v, model %v / %v", last, ev.Model.Accuracy, ev.Model.LogLoss)
+	}
+	// A quarter of the history is worse than all of it (demo history:
+	// measured 2026-12-02, log-loss about 0.15 higher at 25 %).
+	if ev.Learning[0].LogLoss < ev.Learning[3].LogLoss+0.05 {
+		t.Errorf("curve does not fall: %+v", ev.Learning)
+	}
+	if ev.LearningVerdict == "" {
+		t.Error("no learning verdict")
+	}
+	// The same curve without shrinkage, for the README (run with -v).
+	raw, err := CrossValidate(context.Background(), ds, EvalOptions{Folds: 5, Seed: 1, Forest: Options{Trees: 40}, LearningCurve: true, Raw: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for j, p := range ev.Learning {
+		r := raw.Learning[j]
+		t.Logf("%4d digs: raw accuracy %.3f log-loss %.3f; shrunk accuracy %.3f log-loss %.3f", p.Digs, r.Accuracy, r.LogLoss, p.Accuracy, p.LogLoss)
+		if p.LogLoss >= r.LogLoss {
+			t.Errorf("%d digs: shrinkage does not lower the log-loss (%.3f vs %.3f raw)", p.Digs, p.LogLoss, r.LogLoss)
+		}
+	}
+}

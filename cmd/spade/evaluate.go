@@ -4,6 +4,7 @@ import (
 	"context"
 	"encoding/json"
 	"errors"
+	"fmt"
 	"io"
 	"sync"
 
@@ -16,13 +17,15 @@ import (
 )
 
 type evaluateOptions struct {
-	in     labelledLogFlags
-	format formatFlag
-	values valuesFlags
-	folds  int
-	trees  int
-	seed   uint64
-	output string
+	in      labelledLogFlags
+	format  formatFlag
+	values  valuesFlags
+	folds   int
+	trees   int
+	seed    uint64
+	output  string
+	group   string
+	noCurve bool
 }
 
 func (o *evaluateOptions) AddFlags(fs *pflag.FlagSet) {
@@ -33,6 +36,8 @@ func (o *evaluateOptions) AddFlags(fs *pflag.FlagSet) {
 	fs.IntVar(&o.trees, "trees", 200, "trees in each fold's forest")
 	fs.Uint64Var(&o.seed, "seed", 1, "random seed for the folds and the forests")
 	fs.StringVarP(&o.output, "output", "o", "-", "write the report to `FILE` (- is standard output)")
+	fs.StringVar(&o.group, "group", "", "leave-group-out folds by `COLUMN`: site, date or month (whole groups held out together; honest when many digs come from one spot or day)")
+	fs.BoolVar(&o.noCurve, "no-learning-curve", false, "leave out the learning curve (it grows forests on 25, 50 and 75% of each fold too)")
 }
 
 func newEvaluateCommand(g *globalOptions) *cobra.Command {
@@ -83,10 +88,17 @@ func runEvaluate(ctx context.Context, g *globalOptions, opts evaluateOptions, ar
 	if err := opts.values.check(vals, ds.Classes, kind); err != nil {
 		return err
 	}
-	ev, err := evaluateDataset(ctx, g, ds, opts.folds, opts.trees, opts.seed, vals, opts.format.json())
+	groups, err := groupsOf(log, opts.group)
 	if err != nil {
 		return err
 	}
+	ev, err := evaluateDataset(ctx, g, ds, opts.folds, opts.trees, opts.seed, vals, opts.format.json(), func(eo *train.EvalOptions) {
+		eo.Groups, eo.LearningCurve = groups, !opts.noCurve
+	})
+	if err != nil {
+		return err
+	}
+	ev.GroupedBy = opts.group
 	if ev.Screen, err = evaluateScreen(ctx, g, log, spec, opts.seed, vals, opts.format.json()); err != nil {
 		return err
 	}
@@ -127,6 +139,33 @@ func evaluateScreen(ctx context.Context, g *globalOptions, log *features.Log, sp
 	return ev, err
 }
 
+// groupsOf is each dig's group for --group: its site, date, or month.
+func groupsOf(log *features.Log, by string) ([]string, error) {
+	if by == "" {
+		return nil, nil
+	}
+	groups := make([]string, len(log.Digs))
+	for i := range log.Digs {
+		d := &log.Digs[i]
+		var g string
+		switch by {
+		case "site":
+			g = d.Site
+		case "date":
+			g = d.Date
+		case "month":
+			g = d.Date[:min(7, len(d.Date))]
+		default:
+			return nil, usagef("--group: want site, date or month, got %q", by)
+		}
+		if g == "" {
+			return nil, &features.ParseError{File: log.Name, Line: d.Line, Column: by, Err: fmt.Errorf("%w: --group %s needs a %s on every row", features.ErrMissingValue, by, map[bool]string{true: "site", false: "date"}[by == "site"])}
+		}
+		groups[i] = g
+	}
+	return groups, nil
+}
+
 // specNotes says once what the log's feature spec leaves out.
 func (g *globalOptions) specNotes(spec *features.FeatureSpec) {
 	for _, n := range spec.Notes() {
@@ -136,15 +175,22 @@ func (g *globalOptions) specNotes(spec *features.FeatureSpec) {
 
 // evaluateDataset cross-validates an extracted table, with a progress bar.
 // vals nil means no keepers: no dig-saving figures.
-func evaluateDataset(ctx context.Context, g *globalOptions, ds *train.Dataset, folds, trees int, seed uint64, vals *classify.Values, quiet bool) (*train.Evaluation, error) {
+func evaluateDataset(ctx context.Context, g *globalOptions, ds *train.Dataset, folds, trees int, seed uint64, vals *classify.Values, quiet bool, extra ...func(*train.EvalOptions)) (*train.Evaluation, error) {
 	eo := train.EvalOptions{Folds: folds, Seed: seed, Forest: train.Options{Trees: trees}}
+	for _, e := range extra {
+		e(&eo)
+	}
 	if vals != nil {
 		eo.Keepers, eo.Hazards = vals.Split(ds.Classes)
 		if len(eo.Keepers) == 0 {
 			g.note("note: no class counts as a keeper (worth more than a dig, or listed in keep): no dig-saving figures")
 		}
 	}
-	bar := g.progress(folds*trees, "cross-validating", quiet)
+	rounds := 1
+	if eo.LearningCurve {
+		rounds = 4
+	}
+	bar := g.progress(folds*trees*rounds, "cross-validating", quiet)
 	// Called from every tree-growing goroutine at once.
 	var mu sync.Mutex
 	last := 0

@@ -31,8 +31,13 @@ func trunc(s string, n int) string {
 
 // writeEvaluation prints the cross-validated report in 80 columns.
 func writeEvaluation(w io.Writer, ev *train.Evaluation, label string) {
-	fmt.Fprintf(w, "Cross-validated on %d digs: %d folds (stratified), seed %d, %d classes (%s).\n\n",
-		ev.Digs, ev.Folds, ev.Seed, len(ev.Classes), label)
+	how := "stratified"
+	if ev.GroupedBy != "" {
+		how = "whole groups by " + ev.GroupedBy + " held out together"
+	}
+	fmt.Fprint(w, wrap(fmt.Sprintf("Cross-validated on %d digs: %d folds (%s), seed %d, %d classes (%s).",
+		ev.Digs, ev.Folds, how, ev.Seed, len(ev.Classes), label), 80, ""))
+	fmt.Fprintln(w)
 	for _, n := range ev.Warnings {
 		fmt.Fprint(w, wrap("note: "+n+".", 78, ""))
 	}
@@ -52,6 +57,14 @@ func writeEvaluation(w io.Writer, ev *train.Evaluation, label string) {
 	row("calibration error (ECE)", m.ECE, b.ECE, "")
 	if v := ev.Verdict(); v != "" {
 		fmt.Fprint(w, wrap(v, 78, ""))
+	}
+	if len(ev.Learning) > 0 {
+		fmt.Fprintf(w, "\nLearning curve: the same folds, learning from part of each fold's digs\n")
+		fmt.Fprintf(w, "  %-10s %8s %10s %10s\n", "share", "digs", "accuracy", "log-loss")
+		for _, p := range ev.Learning {
+			fmt.Fprintf(w, "  %-10s %8d %10.3f %10.3f\n", pct(p.Share), p.Digs, p.Accuracy, p.LogLoss)
+		}
+		fmt.Fprint(w, wrap(ev.LearningVerdict, 78, "  "))
 	}
 	if d := ev.DigSaving; d != nil {
 		fmt.Fprintf(w, "\nDig saving: trash digs you could have skipped, keeping your keepers\n")
