@@ -208,32 +208,11 @@ func (v *Values) CheckNames(source string, classes []string, label features.Labe
 func nearestName(s string, names []string) (string, int) {
 	best, bd := "", math.MaxInt
 	for _, n := range names {
-		if d := editDistance(s, n); d < bd {
+		if d := features.EditDistance(s, n); d < bd {
 			best, bd = n, d
 		}
 	}
 	return best, bd
-}
-
-func editDistance(a, b string) int {
-	ra, rb := []rune(a), []rune(b)
-	prev := make([]int, len(rb)+1)
-	cur := make([]int, len(rb)+1)
-	for j := range prev {
-		prev[j] = j
-	}
-	for i := 1; i <= len(ra); i++ {
-		cur[0] = i
-		for j := 1; j <= len(rb); j++ {
-			sub := prev[j-1]
-			if ra[i-1] != rb[j-1] {
-				sub++
-			}
-			cur[j] = min(prev[j]+1, cur[j-1]+1, sub)
-		}
-		prev, cur = cur, prev
-	}
-	return prev[len(rb)]
 }
 
 // ValueOf is a class's worth: its own entry, else its material's, else its

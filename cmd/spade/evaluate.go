@@ -99,6 +99,7 @@ func runEvaluate(ctx context.Context, g *globalOptions, opts evaluateOptions, ar
 		return err
 	}
 	ev.GroupedBy = opts.group
+	ev.Warnings = append(ev.Warnings, features.LabelNotes(log.Digs)...)
 	if ev.Screen, err = evaluateScreen(ctx, g, log, spec, opts.seed, vals, opts.format.json()); err != nil {
 		return err
 	}

@@ -88,13 +88,13 @@ func runTrain(ctx context.Context, g *globalOptions, opts trainOptions, args []s
 		enc := json.NewEncoder(g.stdout)
 		enc.SetIndent("", "  ")
 		return enc.Encode(map[string]any{"model": opts.output, "summary": bundle.Summary, "classes": bundle.Classes, "freqs": spec.Freqs,
-			"hazard_check": hazardStatus(bundle), "warnings": train.HistoryNotes(bundle.Summary.Digs, bundle.Summary.ClassCounts)})
+			"hazard_check": hazardStatus(bundle), "warnings": trainNotes(bundle, log)})
 	}
 	s := bundle.Summary
 	fmt.Fprintf(g.stdout, "Trained on %d digs, %d classes (%s), %d trees; wrote %s\n", s.Digs, len(bundle.Classes), kind, s.Trees, opts.output)
 	fmt.Fprintf(g.stdout, "Out-of-bag: accuracy %.3f, balanced accuracy %.3f, log-loss %.3f\n", s.OutOfBag.Accuracy, s.OutOfBag.BalancedAccuracy, s.OutOfBag.LogLoss)
 	fmt.Fprint(g.stdout, wrap(hazardStatus(bundle).Text, 78, ""))
-	for _, n := range train.HistoryNotes(bundle.Summary.Digs, bundle.Summary.ClassCounts) {
+	for _, n := range trainNotes(bundle, log) {
 		fmt.Fprint(g.stdout, wrap("note: "+n+".", 78, ""))
 	}
 	fmt.Fprintln(g.stdout, "For the full report next to the single-number baseline: spade evaluate LOG")
@@ -144,4 +144,11 @@ func classDig(class string, label features.Label) *features.Dig {
 	}
 	m, s := features.SplitClass(class)
 	return &features.Dig{Material: m, Shape: s}
+}
+
+// trainNotes are what the user must know of the history a model learnt:
+// its size, its thin classes, and labels that look like one thing spelt
+// two ways.
+func trainNotes(b *train.Bundle, log *features.Log) []string {
+	return append(train.HistoryNotes(b.Summary.Digs, b.Summary.ClassCounts), features.LabelNotes(log.Digs)...)
 }
