@@ -32,7 +32,7 @@ func learningRun(t *testing.T, pool, test *train.Dataset, byUncertainty bool, ro
 		x := make([]float64, len(test.Names))
 		for i := range test.Rows() {
 			p := shrink.Apply(f.Predict(test.Row(i, x), nil))
-			if int32(argmax(p)) == test.Y[i] {
+			if int32(train.Argmax(p)) == test.Y[i] {
 				right++
 			}
 		}
@@ -41,7 +41,7 @@ func learningRun(t *testing.T, pool, test *train.Dataset, byUncertainty bool, ro
 			score := make(map[int]float64, len(left))
 			for _, i := range left {
 				p := f.Predict(pool.Row(i, x), nil)
-				score[i] = 1 - p[argmax(p)] // Learn.Score
+				score[i] = 1 - p[train.Argmax(p)] // Learn.Score
 			}
 			slices.SortStableFunc(left, func(a, b int) int {
 				switch {
@@ -57,16 +57,6 @@ func learningRun(t *testing.T, pool, test *train.Dataset, byUncertainty bool, ro
 		left = left[20:]
 	}
 	return acc
-}
-
-func argmax(p []float64) int {
-	best := 0
-	for k, v := range p {
-		if v > p[best] {
-			best = k
-		}
-	}
-	return best
 }
 
 // TestDiggingToLearnNeedsFewerDigs: on the demo pool, choosing the next

@@ -80,7 +80,7 @@ func TestGolearnPredictAgrees(t *testing.T) {
 			x = ds.Row(i, x)
 			p := make([]float64, len(f.Classes))
 			f.flat.addTree(tr, x, p)
-			ours := f.Classes[argmax(p)]
+			ours := f.Classes[Argmax(p)]
 			if got := base.GetClass(pred, i); got != ours {
 				t.Fatalf("tree %d row %d: golearn %s, spade %s", tr, i, got, ours)
 			}

@@ -76,7 +76,7 @@ func Score(classes []string, y []int32, p [][]float64) Metrics {
 			continue
 		}
 		n++
-		top := argmax(row)
+		top := Argmax(row)
 		cm[classes[y[i]]][classes[top]]++
 		if int32(top) == y[i] {
 			correct++
@@ -144,8 +144,9 @@ func zeroNaN(v float64) float64 {
 	return v
 }
 
-// argmax is the index of the largest value, the first on a tie.
-func argmax(p []float64) int {
+// Argmax is the index of the largest value, the first on a tie: the top
+// class of a row of probabilities.
+func Argmax(p []float64) int {
 	best := 0
 	for k, v := range p {
 		if v > p[best] {
