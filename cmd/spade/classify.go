@@ -79,6 +79,9 @@ Files of any size stream through in constant memory.`,
 }
 
 func runClassify(ctx context.Context, g *globalOptions, opts classifyOptions, args []string) error {
+	if err := checkOutputs(map[string]string{"-o": opts.output}, append([]string{opts.model, opts.values.file}, args...)...); err != nil {
+		return err
+	}
 	if err := opts.format.check(); err != nil {
 		return err
 	}

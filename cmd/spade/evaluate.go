@@ -65,6 +65,9 @@ not a promise about the next one.`,
 }
 
 func runEvaluate(ctx context.Context, g *globalOptions, opts evaluateOptions, args []string) error {
+	if err := checkOutputs(map[string]string{"-o": opts.output}, args[0], opts.values.file); err != nil {
+		return err
+	}
 	if err := opts.format.check(); err != nil {
 		return err
 	}

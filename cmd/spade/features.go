@@ -38,6 +38,11 @@ data in a spreadsheet or to compare against another learner.`,
 }
 
 func runFeatures(_ context.Context, g *globalOptions, opts featuresOptions, args []string) error {
+	if len(args) > 0 {
+		if err := checkOutputs(map[string]string{"-o": opts.output}, args[0]); err != nil {
+			return err
+		}
+	}
 	log, err := g.readLog(args[0], opts.log.readOptions())
 	if err != nil {
 		return err

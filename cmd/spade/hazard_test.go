@@ -148,3 +148,35 @@ func TestHazardThresholdIsAFraction(t *testing.T) {
 		t.Errorf("hazard_threshold = 0.5 refused: %s", stderr)
 	}
 }
+
+func TestOutputNeverOverwritesAnInput(t *testing.T) {
+	dir, model, history, readings, values := demoModel(t)
+	t.Chdir(dir)
+	rel := filepath.Base(history)
+	dotted := filepath.Join(dir, "sub", "..", filepath.Base(history))
+	cases := [][]string{
+		{"train", history, "-o", history},
+		{"train", history, "-o", dotted},
+		{"train", history, "-o", "./" + rel},
+		{"classify", "--model", model, readings, "-o", model},
+		{"classify", "--model", model, "--values", values, readings, "-o", values},
+		{"evaluate", history, "--values", values, "-o", values},
+		{"overlap", history, "--plot", history},
+		{"features", history, "-o", history},
+	}
+	before := map[string][]byte{}
+	for _, f := range []string{model, history, readings, values} {
+		before[f], _ = os.ReadFile(f)
+	}
+	for _, c := range cases {
+		_, stderr, code := spade(t, "", c...)
+		if code != 2 || !strings.Contains(stderr, "names the input") {
+			t.Errorf("%v: exit %d, %q", c, code, stderr)
+		}
+	}
+	for f, b := range before {
+		if now, _ := os.ReadFile(f); string(now) != string(b) {
+			t.Errorf("%s was changed", f)
+		}
+	}
+}

@@ -74,6 +74,9 @@ mean entropy before and after, and the trash skippable there while keeping
 }
 
 func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args []string) error {
+	if err := checkOutputs(map[string]string{"-o": opts.output, "--plot": opts.plot}, args[0], opts.model, opts.values.file); err != nil {
+		return err
+	}
 	if err := opts.format.check(); err != nil {
 		return err
 	}

@@ -55,6 +55,9 @@ training never destroys the previous model.`,
 }
 
 func runTrain(ctx context.Context, g *globalOptions, opts trainOptions, args []string) error {
+	if err := checkOutputs(map[string]string{"-o": opts.output}, args[0]); err != nil {
+		return err
+	}
 	if opts.output == "" {
 		return usagef("train needs -o MODEL: where to write the model")
 	}
