@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"strconv"
 	"strings"
 
 	"github.com/spade-detect/spade/features"
@@ -14,16 +15,20 @@ import (
 var ErrInline = errors.New("bad reading")
 
 // ParseInline reads one reading as typed in the field: per frequency
-// HZ=PHASE/AMP, separated by commas or spaces, with optional id=N for the
-// display ID and gHZ=PHASE/AMP for a bare-ground reading beside it:
+// HZ=PHASE/AMP, separated by commas, semicolons, spaces or tabs, with
+// optional id=N for the display ID, depth=CM for the depth (the ordnance
+// screen then judges by apparent size) and gHZ=PHASE/AMP for a bare-ground
+// reading beside it:
 //
 //	5k=111.8/0.100, 10k=129.0/0.170, 20k=147.5/0.232, 40k=163.2/0.263, id=60
 //
-// Frequencies take the dig log's forms (5000, 5k).
+// Frequencies take the dig log's forms (5000, 5k) and may end in Hz
+// (5kHz). Numbers are parsed strictly: "0.1O" (a letter O) is refused,
+// naming the character, never read as 0.1.
 func ParseInline(s string) (*features.Dig, error) {
 	d := &features.Dig{ID: "reading", DisplayID: math.NaN(), DepthCM: math.NaN()}
 	var ground []features.Reading
-	fields := strings.FieldsFunc(s, func(r rune) bool { return r == ',' || r == ' ' || r == ';' })
+	fields := strings.FieldsFunc(s, func(r rune) bool { return r == ',' || r == ' ' || r == ';' || r == '\t' })
 	if len(fields) == 0 {
 		return nil, fmt.Errorf("%w: empty (want e.g. 5k=111.8/0.10, 20k=147.5/0.23)", ErrInline)
 	}
@@ -33,16 +38,22 @@ func ParseInline(s string) (*features.Dig, error) {
 			return nil, fmt.Errorf("%w: %q is not HZ=PHASE/AMP or id=N", ErrInline, f)
 		}
 		key = strings.ToLower(strings.TrimSpace(key))
-		if key == "id" {
-			var v float64
-			if _, err := fmt.Sscan(val, &v); err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
-				return nil, fmt.Errorf("%w: id=%q is not a number", ErrInline, val)
+		if key == "id" || key == "depth" {
+			v, err := inlineNumber(val)
+			if err != nil {
+				return nil, fmt.Errorf("%w: %s=%q: %v", ErrInline, key, val, err)
 			}
-			d.DisplayID = v
+			if key == "id" {
+				d.DisplayID = v
+			} else if v < 0 {
+				return nil, fmt.Errorf("%w: depth=%q: a depth is >= 0 (in cm)", ErrInline, val)
+			} else {
+				d.DepthCM = v
+			}
 			continue
 		}
 		isGround := strings.HasPrefix(key, "g")
-		hz, err := features.ParseHz(strings.TrimPrefix(key, "g"))
+		hz, err := features.ParseHz(strings.TrimSuffix(strings.TrimPrefix(key, "g"), "hz"))
 		if err != nil {
 			return nil, fmt.Errorf("%w: %q: %v", ErrInline, f, err)
 		}
@@ -50,12 +61,16 @@ func ParseInline(s string) (*features.Dig, error) {
 		if !ok {
 			return nil, fmt.Errorf("%w: %q: want PHASE/AMP after =", ErrInline, f)
 		}
-		var p, a float64
-		if _, err := fmt.Sscan(ph, &p); err != nil || math.IsNaN(p) || math.IsInf(p, 0) {
-			return nil, fmt.Errorf("%w: %q: phase %q is not a number", ErrInline, f, ph)
+		p, err := inlineNumber(ph)
+		if err != nil {
+			return nil, fmt.Errorf("%w: %q: phase: %v", ErrInline, f, err)
 		}
-		if _, err := fmt.Sscan(amp, &a); err != nil || !(a > 0) || math.IsInf(a, 0) {
-			return nil, fmt.Errorf("%w: %q: amplitude must be a number > 0, got %q", ErrInline, f, amp)
+		a, err := inlineNumber(amp)
+		if err != nil || !(a > 0) {
+			if err == nil {
+				err = fmt.Errorf("must be > 0, got %v", a)
+			}
+			return nil, fmt.Errorf("%w: %q: amplitude: %v", ErrInline, f, err)
 		}
 		r := features.FromPolar(hz, p, a)
 		list := &d.Readings
@@ -87,4 +102,20 @@ func ParseInline(s string) (*features.Dig, error) {
 		d.Ground = ground
 	}
 	return d, nil
+}
+
+// inlineNumber parses a whole field as a finite number, naming the first
+// character that is not part of one.
+func inlineNumber(s string) (float64, error) {
+	s = strings.TrimSpace(s)
+	v, err := strconv.ParseFloat(s, 64)
+	if err == nil && !math.IsNaN(v) && !math.IsInf(v, 0) {
+		return v, nil
+	}
+	for i, r := range s {
+		if !strings.ContainsRune("0123456789.+-eE", r) {
+			return 0, fmt.Errorf("%q is not a number: character %q at position %d", s, r, i+1)
+		}
+	}
+	return 0, fmt.Errorf("%q is not a finite number", s)
 }

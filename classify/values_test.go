@@ -72,6 +72,27 @@ func TestParseInline(t *testing.T) {
 	}
 }
 
+func TestParseInlineIsStrict(t *testing.T) {
+	// Issues 13 and 14: "0.1O" (letter O) and "id=6O" were read as 0.1
+	// and 6; a typo inside a reading is now refused, naming the character.
+	for _, c := range []struct{ in, want string }{
+		{"5k=111.8/0.1O", `character 'O' at position 4`},
+		{"5k=111.8/0.1, id=6O", `character 'O' at position 2`},
+		{"5k=11l.8/0.1", `character 'l' at position 3`},
+		{"5k=111.8/0.1, depth=-3", "a depth is >= 0"},
+	} {
+		_, err := ParseInline(c.in)
+		if !errors.Is(err, ErrInline) || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%q: error %v, want %q", c.in, err, c.want)
+		}
+	}
+	// Tabs, 5kHz and a depth are accepted.
+	d, err := ParseInline("5kHz=111.8/0.10\t10kHz=129/0.17\tdepth=40")
+	if err != nil || len(d.Readings) != 2 || d.Readings[1].Hz != 10000 || d.DepthCM != 40 {
+		t.Errorf("parsed %+v, %v", d, err)
+	}
+}
+
 func TestValuesKeysDifferingOnlyInCaseAreRefused(t *testing.T) {
 	// Folded while ranging over a map, such keys made the verdict change
 	// from run to run; now the same file always gives the same answer.

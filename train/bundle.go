@@ -166,14 +166,24 @@ func (b *Bundle) Save(path string) error {
 func Load(path string) (*Bundle, error) {
 	f, err := os.Open(path)
 	if err != nil {
-		return nil, fmt.Errorf("train: %w", err)
+		return nil, fmt.Errorf("train: cannot read model %s: %w", path, err)
 	}
 	defer f.Close()
-	data, err := io.ReadAll(io.LimitReader(f, maxModelBytes+1))
+	// The magic first, and then no more than the header says: a file that
+	// is no model (or /dev/zero) is refused after 20 bytes.
+	var head [headerLen]byte
+	if _, err := io.ReadFull(f, head[:]); err != nil || string(head[:len(magic)]) != magic {
+		return nil, fmt.Errorf("%s: %w", path, ErrNotModel)
+	}
+	plen := binary.LittleEndian.Uint64(head[12:])
+	if plen > maxModelBytes {
+		return nil, fmt.Errorf("%s: %w: payload of %d bytes is larger than any model", path, ErrCorrupt, plen)
+	}
+	rest, err := io.ReadAll(io.LimitReader(f, int64(plen)+sha256.Size+1))
 	if err != nil {
 		return nil, fmt.Errorf("train: reading %s: %w", path, err)
 	}
-	b, err := Unmarshal(data)
+	b, err := Unmarshal(append(head[:], rest...))
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", path, err)
 	}
@@ -265,6 +275,9 @@ func (b *Bundle) validate() error {
 	}
 	t := &b.Training
 	n, p, K := len(t.Y), b.Spec.Len(), len(b.Classes)
+	if n == 0 {
+		return errors.New("no training digs")
+	}
 	if len(t.IDs) != n || len(t.Dates) != n || len(t.Vectors) != n || len(t.OutOfBag) != n {
 		return errors.New("training arrays differ in length")
 	}

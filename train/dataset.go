@@ -2,6 +2,7 @@ package train
 
 import (
 	"fmt"
+	"math"
 	"slices"
 
 	"github.com/spade-detect/spade/features"
@@ -68,6 +69,13 @@ func FromLog(log *features.Log, spec *features.FeatureSpec, kind features.Label)
 		v, _, err := spec.Extract(d, flat[i*spec.Len():(i+1)*spec.Len()])
 		if err != nil {
 			return nil, &features.ParseError{File: log.Name, Line: d.Line, Err: err}
+		}
+		for f, x := range v {
+			if math.IsNaN(x) || math.IsInf(x, 0) {
+				// An amplitude near 1e155 squares to infinity: refused here,
+				// at its line, not after a whole training.
+				return nil, &features.ParseError{File: log.Name, Line: d.Line, Column: spec.Names[f], Err: fmt.Errorf("%w: the reading gives %v (a phase or amplitude out of range?)", features.ErrNotFinite, x)}
+			}
 		}
 		rows[i] = v
 		labels[i] = d.Class(kind)

@@ -66,7 +66,8 @@ safe, and an unfamiliar one is "unsure". A model that cannot warn says so in
 every view. A probability is never a guarantee.
 
 Inline readings: HZ=PHASE/AMP per frequency, separated by commas or spaces;
-id=N adds the display ID, gHZ=PHASE/AMP a bare-ground reading beside the target.
+id=N adds the display ID, depth=CM the depth (the ordnance screen then judges
+by apparent size), gHZ=PHASE/AMP a bare-ground reading beside the target.
 Files of any size stream through in constant memory.`,
 		Example: "  spade classify --model my.spade new.csv\n" +
 			"  spade classify --model my.spade --values values.toml --format json new.jsonl\n" +
@@ -162,7 +163,15 @@ func classifyStream(ctx context.Context, c *classify.Classifier, next func() (fe
 			wg.Add(1)
 			go func() {
 				defer wg.Done()
-				for i := wi; i < len(batch); i += len(clones) {
+				i := wi
+				// A panic in a worker is turned into this reading's error,
+				// reported with its line like any other: never a stack trace.
+				defer func() {
+					if r := recover(); r != nil && i < len(batch) {
+						errs[i] = fmt.Errorf("internal error classifying this reading: %v (please report it)", r)
+					}
+				}()
+				for ; i < len(batch); i += len(clones) {
 					results[i], errs[i] = cl.Classify(&batch[i])
 				}
 			}()

@@ -74,6 +74,9 @@ func runEvaluate(ctx context.Context, g *globalOptions, opts evaluateOptions, ar
 	if opts.folds < 2 {
 		return usagef("--folds must be at least 2")
 	}
+	if opts.trees < 1 {
+		return usagef("--trees must be at least 1, got %d", opts.trees)
+	}
 	vals, err := opts.values.load()
 	if err != nil {
 		return err

@@ -180,3 +180,28 @@ func TestOutputNeverOverwritesAnInput(t *testing.T) {
 		}
 	}
 }
+
+func TestRefusals(t *testing.T) {
+	_, model, history, readings, _ := demoModel(t)
+	dir := t.TempDir()
+	huge := filepath.Join(dir, "huge.csv")
+	os.WriteFile(huge, []byte("dig,material,shape,phase_5000,amp_5000,phase_10000,amp_10000\na,iron,nail,20,1e200,25,1\nb,gold,ring,120,0.5,130,0.6\n"), 0o644)
+	cases := []struct {
+		args []string
+		code int
+		want string
+	}{
+		{[]string{"evaluate", history, "--trees", "0"}, 2, "--trees must be at least 1"},
+		{[]string{"overlap", history, "--trees", "-1"}, 2, "--trees must be at least 1"},
+		{[]string{"classify", "--model", "/dev/zero", readings}, 1, "not a spade model file"},
+		{[]string{"classify", "--model", readings, readings}, 1, "not a spade model file"},
+		{[]string{"train", huge, "-o", filepath.Join(dir, "m.spade")}, 1, "huge.csv:2: fit_residual: must be finite"},
+		{[]string{"classify", "--model", model, "-r", "5k=111.8/1e200, 10k=129.0/0.17, 20k=147.5/0.23, 40k=163.2/0.26, id=60"}, 1, "not a finite number"},
+	}
+	for _, c := range cases {
+		_, stderr, code := spade(t, "", c.args...)
+		if code != c.code || !strings.Contains(stderr, c.want) || strings.Contains(stderr, "goroutine") {
+			t.Errorf("%v: exit %d, %q; want %d and %q", c.args, code, stderr, c.code, c.want)
+		}
+	}
+}

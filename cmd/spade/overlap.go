@@ -85,6 +85,9 @@ func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args
 			return usageError{err}
 		}
 	}
+	if opts.trees < 1 {
+		return usagef("--trees must be at least 1, got %d", opts.trees)
+	}
 	if opts.minTop <= 0 || opts.minTop > 1 || opts.maxEntropy <= 0 || opts.bin < 0 {
 		return usagef("need 0 < --min-top-share <= 1, --max-entropy > 0 and --bin >= 0")
 	}
