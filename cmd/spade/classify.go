@@ -89,8 +89,13 @@ func runClassify(ctx context.Context, g *globalOptions, opts classifyOptions, ar
 	if opts.model == "" {
 		return usagef("classify needs --model MODEL (from spade train)")
 	}
-	if (opts.reading == "") == (len(args) == 0) {
-		return usagef("give a readings file (or - for standard input) or --reading, not both")
+	switch {
+	case opts.reading == "" && len(args) == 0:
+		return usagef("give a readings file, - for standard input, or --reading")
+	case opts.reading != "" && len(args) > 0:
+		return usagef("give a readings file or --reading, not both")
+	case opts.top < 1:
+		return usagef("--top must be at least 1, got %d", opts.top)
 	}
 	bundle, err := train.Load(opts.model)
 	if err != nil {

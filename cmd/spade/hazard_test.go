@@ -205,3 +205,27 @@ func TestRefusals(t *testing.T) {
 		}
 	}
 }
+
+func TestCompletionOffersFlagValues(t *testing.T) {
+	for _, c := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"__complete", "classify", "--format", ""}, "table\njson\ncsv\n"},
+		{[]string{"__complete", "train", "--label", ""}, "material\nshape\nboth\n"},
+		{[]string{"__complete", "simulate", "--scenario", ""}, "demo\nfield\nbeach\n"},
+	} {
+		out, _, _ := spade(t, "", c.args...)
+		if !strings.HasPrefix(out, c.want) {
+			t.Errorf("%v: %q", c.args, out)
+		}
+	}
+	_, stderr, code := spade(t, "", "classify", "--model", "m.spade")
+	if code != 2 || !strings.Contains(stderr, "give a readings file, - for standard input, or --reading") {
+		t.Errorf("no readings: exit %d, %q", code, stderr)
+	}
+	_, stderr, code = spade(t, "", "classify", "--model", "m.spade", "--top", "-3", "r.csv")
+	if code != 2 || !strings.Contains(stderr, "--top must be at least 1") {
+		t.Errorf("--top -3: exit %d, %q", code, stderr)
+	}
+}

@@ -11,6 +11,7 @@ import (
 	"strconv"
 	"strings"
 
+	"github.com/spade-detect/spade/datasets"
 	"github.com/spf13/cobra"
 	"github.com/spf13/pflag"
 )
@@ -108,8 +109,33 @@ func newRootCommand(g *globalOptions) *cobra.Command {
 	)
 	for _, c := range root.Commands() {
 		c.Args = wrapArgs(c.Args)
+		registerValueCompletions(c)
 	}
 	return root
+}
+
+// registerValueCompletions offers the values of the flags that take one of
+// a few words: --format (the command's own list, from its help), --label,
+// --scenario and --group.
+func registerValueCompletions(c *cobra.Command) {
+	words := map[string][]string{
+		"label": {"material", "shape", "both"},
+		"group": {"site", "date", "month"},
+	}
+	for _, sc := range datasets.Scenarios {
+		words["scenario"] = append(words["scenario"], sc.Name)
+	}
+	if f := c.Flags().Lookup("format"); f != nil {
+		words["format"] = strings.Split(f.Usage, ", ")
+	}
+	for name, values := range words {
+		if c.Flags().Lookup(name) == nil {
+			continue
+		}
+		c.RegisterFlagCompletionFunc(name, func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
+			return values, cobra.ShellCompDirectiveNoFileComp
+		})
+	}
 }
 
 // finiteFloatFlags refuses NaN and ±Inf in every float flag of every command
