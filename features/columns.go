@@ -3,6 +3,7 @@ package features
 import (
 	"fmt"
 	"math"
+	"math/big"
 	"slices"
 	"strconv"
 	"strings"
@@ -49,26 +50,32 @@ var readingPrefixes = []struct {
 // ParseHz reads a frequency in integer hertz, accepting a k suffix:
 // "8000", "8k" and "12.5k" are 8000, 8000 and 12500.
 func ParseHz(s string) (int, error) {
-	s = strings.ToLower(strings.TrimSpace(s))
-	mult := 1.0
-	if t, ok := strings.CutSuffix(s, "k"); ok {
-		s, mult = t, 1000
-	} else if t, ok := strings.CutSuffix(s, "hz"); ok {
+	s = strings.ToLower(strings.Join(strings.Fields(s), ""))
+	s = strings.ReplaceAll(s, "_", "")
+	mult := int64(1)
+	if t, ok := strings.CutSuffix(s, "hz"); ok {
 		s = t
 	}
-	v, err := strconv.ParseFloat(s, 64)
-	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
+	if t, ok := strings.CutSuffix(s, "k"); ok {
+		s, mult = t, 1000
+	}
+	// As an exact decimal, so that 16.1k is 16100 Hz (16.1 × 1000 is not
+	// a whole number in floating point).
+	r, ok := new(big.Rat).SetString(s)
+	if !ok || strings.ContainsAny(s, "/eExXoObB") {
 		return 0, fmt.Errorf("%q is not a frequency in hertz", s)
 	}
-	hz := v * mult
-	if hz != math.Trunc(hz) || hz <= 0 || hz > 1e9 {
+	r.Mul(r, new(big.Rat).SetInt64(mult))
+	if !r.IsInt() || r.Sign() <= 0 || r.Cmp(new(big.Rat).SetInt64(1e9)) > 0 {
 		return 0, fmt.Errorf("frequency %q must be a whole number of hertz > 0", s)
 	}
-	return int(hz), nil
+	return int(r.Num().Int64()), nil
 }
 
 // classifyColumn names what one header cell holds.
 func classifyColumn(name string) (columnKind, int, error) {
+	// Spreadsheet headers: "Phase 5k", "phase 5 kHz", "Display ID".
+	name = strings.Join(strings.Fields(name), "_")
 	if k, ok := plainColumns[name]; ok {
 		return k, 0, nil
 	}

@@ -1,6 +1,8 @@
 package main
 
 import (
+	"strings"
+
 	"github.com/spade-detect/spade/features"
 	"github.com/spf13/pflag"
 )
@@ -50,7 +52,13 @@ func (g *globalOptions) reportRead(bad []*features.ParseError, ignored []string)
 		g.note("skipped %d bad row(s)", len(bad))
 	}
 	if len(ignored) > 0 && g.verbose {
-		g.note("columns kept out of the model: %v", ignored)
+		g.note("columns kept out of the model: %s", strings.Join(ignored, ", "))
+	}
+	for _, c := range ignored {
+		switch strings.ReplaceAll(strings.ReplaceAll(c, " ", ""), "_", "") {
+		case "id", "tid", "targetid", "targetnumber", "number", "reading":
+			g.note("note: column %q was kept out of the model; if it is the number your detector showed, name it display_id", c)
+		}
 	}
 }
 

@@ -33,7 +33,7 @@ rf.predict_proba(Xnew)
 pred = time.perf_counter() - t
 print(json.dumps({
     "version": sklearn.__version__,
-    "accuracy": accuracy_score(y, classes[p.Argmax(1)]),
+    "accuracy": accuracy_score(y, classes[p.argmax(1)]),
     "log_loss": log_loss(y, p, labels=classes),
     "fit_s": fit,
     "predict_s": pred,

@@ -15,5 +15,5 @@ for seed in (1, 2, 3):
     rf = RandomForestClassifier(n_estimators=200, max_features="sqrt", n_jobs=2, random_state=seed)
     p = cross_val_predict(rf, X, y, cv=StratifiedKFold(5, shuffle=True, random_state=seed), method="predict_proba")
     classes = np.unique(y)
-    accs.append(accuracy_score(y, classes[p.Argmax(1)])); lls.append(log_loss(y, p, labels=classes))
+    accs.append(accuracy_score(y, classes[p.argmax(1)])); lls.append(log_loss(y, p, labels=classes))
 print("sklearn", sklearn.__version__, "acc", np.mean(accs), accs, "logloss", np.mean(lls), lls)

@@ -1,0 +1,64 @@
+package features
+
+import (
+	"strings"
+	"testing"
+)
+
+func TestEditDistance(t *testing.T) {
+	// Textbook values (common practice, no source): kitten → sitting is 3.
+	for _, c := range []struct {
+		a, b string
+		d    int
+	}{{"kitten", "sitting", 3}, {"", "abc", 3}, {"aluminum", "aluminium", 1}, {"flaw", "lawn", 2}, {"same", "same", 0}} {
+		if got := EditDistance(c.a, c.b); got != c.d {
+			t.Errorf("%q, %q: %d, want %d", c.a, c.b, got, c.d)
+		}
+	}
+}
+
+func TestLabelNotes(t *testing.T) {
+	digs := []Dig{
+		{Material: "aluminium", Shape: "foil"}, {Material: "aluminum", Shape: "foil"},
+		{Material: "iron", Shape: "nail"}, {Material: "iron", Shape: "nails"}, {Material: "iron", Shape: "nails"},
+		{Material: "tin", Shape: "cap"}, {Material: "zinc", Shape: "cup"},
+	}
+	notes := strings.Join(LabelNotes(digs), "\n")
+	for _, want := range []string{`materials "aluminium" (1 digs) and "aluminum" (1 digs)`, `shapes "nail" (1 digs) and "nails" (2 digs)`} {
+		if !strings.Contains(notes, want) {
+			t.Errorf("notes lack %q:\n%s", want, notes)
+		}
+	}
+	// Short words one letter apart are different things.
+	if strings.Contains(notes, `"cap"`) {
+		t.Errorf("cap and cup reported:\n%s", notes)
+	}
+}
+
+func TestSpreadsheetHeaders(t *testing.T) {
+	// Issue 13: headers as people type them, and decimal kilohertz parsed
+	// exactly (16.1 × 1000 is not a whole number in floating point).
+	for _, c := range []struct {
+		header string
+		hz     int
+	}{
+		{"phase_5kHz", 5000}, {"Phase 5k", 5000}, {"phase 5 kHz", 5000}, {"PHASE_5000", 5000},
+		{"phase_16.1k", 16100}, {"phase_2.01k", 2010}, {"phase_8.11k", 8110}, {"phase_12500Hz", 12500},
+	} {
+		in := "dig,material,shape," + c.header + ",Amp " + strings.TrimPrefix(strings.TrimPrefix(strings.ToLower(c.header), "phase_"), "phase ") + "\na,iron,nail,20,0.5\n"
+		log, err := ReadLog(strings.NewReader(in), "h.csv", ReadOptions{})
+		if err != nil {
+			t.Errorf("%q: %v", c.header, err)
+			continue
+		}
+		if len(log.Freqs) != 1 || log.Freqs[0] != c.hz {
+			t.Errorf("%q: frequencies %v, want %d", c.header, log.Freqs, c.hz)
+		}
+	}
+	for _, bad := range []string{"phase_1e3", "phase_0x10", "phase_16.15k5"} {
+		in := "dig," + bad + ",amp_5000\na,20,0.5\n"
+		if _, err := ReadLog(strings.NewReader(in), "h.csv", ReadOptions{}); err == nil {
+			t.Errorf("%q accepted", bad)
+		}
+	}
+}
