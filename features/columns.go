@@ -7,7 +7,6 @@ import (
 	"slices"
 	"strconv"
 	"strings"
-	"time"
 )
 
 // columnKind says what a header column holds.
@@ -224,13 +223,6 @@ func parseNumber(cell string) (float64, error) {
 	return v, nil
 }
 
-// checkDate accepts ISO 8601 calendar dates, YYYY-MM-DD.
-func checkDate(s string) error {
-	if _, err := time.Parse(time.DateOnly, s); err != nil {
-		return cause(ErrBadDate, "got %q", s)
-	}
-	return nil
-}
 
 // normaliseLabel case-folds and trims a material or shape.
 func normaliseLabel(s string) string { return strings.ToLower(strings.TrimSpace(s)) }

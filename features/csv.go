@@ -93,11 +93,8 @@ func (c *csvSource) row(line int, rec []string) (Dig, error) {
 	if err := checkLabel(d.Shape); err != nil {
 		return d, perr(si, err)
 	}
-	if v, i := text(colDate); v != "" {
-		if err := checkDate(v); err != nil {
-			return d, perr(i, err)
-		}
-		d.Date = v
+	if v, _ := text(colDate); v != "" {
+		d.Date = c.rd.date(v, line)
 	}
 	if v, i := text(colDepth); v != "" {
 		x, err := parseNumber(v)

@@ -89,5 +89,6 @@ type Log struct {
 	HasGround    bool     // at least one dig carries a ground reading
 	Ignored      []string // columns kept out of the model
 	Bad          []*ParseError
-	Unlabelled   int // rows skipped under ReadOptions.SkipUnlabelled
+	Unlabelled   int      // rows skipped under ReadOptions.SkipUnlabelled
+	Notes        []string // remarks for the user (Reader.Notes)
 }

@@ -19,7 +19,7 @@ var (
 	ErrMissingValue  = errors.New("missing value")
 	ErrFreqSet       = errors.New("frequency set differs")
 	ErrDuplicateDig  = errors.New("duplicate dig id")
-	ErrBadDate       = errors.New("not a date (want YYYY-MM-DD)")
+	ErrBadDate       = errors.New("not a date")
 	ErrUnlabelled    = errors.New("unlabelled")
 	ErrLabelSlash    = errors.New(`"/" inside a label`)
 )

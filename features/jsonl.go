@@ -72,7 +72,7 @@ func (j *jsonlSource) row(b []byte) (Dig, error) {
 			d.Site, err = jsonText(raw, false)
 		case "date":
 			if d.Date, err = jsonText(raw, false); err == nil && d.Date != "" {
-				err = checkDate(d.Date)
+				d.Date = j.rd.date(d.Date, j.line)
 			}
 		case "material":
 			d.Material, err = jsonText(raw, false)

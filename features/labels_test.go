@@ -1,6 +1,7 @@
 package features
 
 import (
+	"os"
 	"strings"
 	"testing"
 )
@@ -59,6 +60,40 @@ func TestSpreadsheetHeaders(t *testing.T) {
 		in := "dig," + bad + ",amp_5000\na,20,0.5\n"
 		if _, err := ReadLog(strings.NewReader(in), "h.csv", ReadOptions{}); err == nil {
 			t.Errorf("%q accepted", bad)
+		}
+	}
+}
+
+func TestDatesAsSpreadsheetsWriteThem(t *testing.T) {
+	// Issue 13: every dig is kept; readable dates become YYYY-MM-DD, an
+	// unreadable one is dropped with a note, an ambiguous one is read day
+	// first (or month first when asked) and said once.
+	for _, c := range []struct {
+		order string
+		first string
+	}{{"", "2025-05-03"}, {MonthFirst, "2025-03-05"}} {
+		f, err := os.Open(logs + "dates.csv")
+		if err != nil {
+			t.Fatal(err)
+		}
+		log, err := ReadLog(f, "dates.csv", ReadOptions{DateOrder: c.order})
+		f.Close()
+		if err != nil {
+			t.Fatal(err)
+		}
+		var got []string
+		for _, d := range log.Digs {
+			got = append(got, d.Date)
+		}
+		want := []string{c.first, "2025-04-12", "2025-04-12", "2025-04-12", "2025-04-12", "2025-12-25", "", ""}
+		if strings.Join(got, ",") != strings.Join(want, ",") {
+			t.Errorf("order %q: dates %v, want %v", c.order, got, want)
+		}
+		notes := strings.Join(log.Notes, "\n")
+		for _, w := range []string{`dates.csv:2: dates such as "03/05/2025" are read as`, `dates.csv:8: date: not a date: got "31/02/2025"`, `dates.csv:9: date: not a date: got "tuesday"`} {
+			if !strings.Contains(notes, w) {
+				t.Errorf("order %q: notes lack %q:\n%s", c.order, w, notes)
+			}
 		}
 	}
 }

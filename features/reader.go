@@ -28,6 +28,9 @@ type ReadOptions struct {
 	SkipUnlabelled bool
 	// Format is "csv", "jsonl", or "" to decide by file name and content.
 	Format string
+	// DateOrder is DayFirst (the default) or MonthFirst, for numeric dates
+	// whose day and month could be either way round.
+	DateOrder string
 }
 
 // rowSource is one file format's row parser.
@@ -56,6 +59,36 @@ type Reader struct {
 	Bad []*ParseError
 	// Unlabelled counts the rows skipped under SkipUnlabelled.
 	Unlabelled int
+	// Notes are remarks for the user: unreadable dates (the digs are kept
+	// without them), how ambiguous dates were read.
+	Notes []string
+
+	badDates, ambiguousDates int
+}
+
+// date reads a date cell. An unreadable date is not fatal, since dates are
+// optional: the dig is kept without it, and a note says so (for the first
+// few). An ambiguous one is read by ReadOptions.DateOrder, said once.
+func (rd *Reader) date(v string, line int) string {
+	date, ambiguous, err := ParseDate(v, rd.opts.DateOrder)
+	if err != nil {
+		rd.badDates++
+		if rd.badDates <= 5 {
+			rd.Notes = append(rd.Notes, fmt.Sprintf("%s:%d: date: %v; the dig is kept without its date", rd.name, line, err))
+		}
+		return ""
+	}
+	if ambiguous {
+		if rd.ambiguousDates == 0 {
+			how, other := "day/month/year", "--date-format mdy for month/day/year"
+			if rd.opts.DateOrder == MonthFirst {
+				how, other = "month/day/year", "--date-format dmy for day/month/year"
+			}
+			rd.Notes = append(rd.Notes, fmt.Sprintf("%s:%d: dates such as %q are read as %s (%s); give %s", rd.name, line, v, how, date, other))
+		}
+		rd.ambiguousDates++
+	}
+	return date
 }
 
 // NewReader starts reading a dig log from r; name is used in errors.
@@ -209,7 +242,7 @@ func ReadLog(r io.Reader, name string, opts ReadOptions) (*Log, error) {
 		}
 		log.Digs = append(log.Digs, d)
 	}
-	log.Freqs, log.Ignored, log.Bad, log.Unlabelled = rd.freqs, rd.ignored, rd.Bad, rd.Unlabelled
+	log.Freqs, log.Ignored, log.Bad, log.Unlabelled, log.Notes = rd.freqs, rd.ignored, rd.Bad, rd.Unlabelled, rd.Notes
 	log.HasDisplayID = rd.HasDisplayID()
 	for i := range log.Digs {
 		if log.Digs[i].Ground != nil {

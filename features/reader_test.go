@@ -84,7 +84,6 @@ func TestBadInputs(t *testing.T) {
 		{"no-readings.csv", ReadOptions{}, ErrMissingColumn, "no-readings.csv:1: phase_<hz>: missing column"},
 		{"freq-gap.csv", ReadOptions{}, ErrFreqSet, "freq-gap.csv:2: phase_20k: frequency set differs"},
 		{"duplicate-dig.csv", ReadOptions{}, ErrDuplicateDig, `duplicate-dig.csv:3: dig: duplicate dig id, "b1" was used on line 2`},
-		{"bad-date.csv", ReadOptions{}, ErrBadDate, "bad-date.csv:2: date: not a date"},
 		{"short-row.csv", ReadOptions{}, ErrFieldCount, "short-row.csv:2: wrong number of fields"},
 		{"bad-quote.csv", ReadOptions{}, ErrSyntax, "bad-quote.csv:"},
 		{"duplicate-column.csv", ReadOptions{}, ErrHeader, "duplicate-column.csv:1: phase_5k: bad header"},

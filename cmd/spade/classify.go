@@ -228,6 +228,9 @@ func readingSource(g *globalOptions, opts classifyOptions, args []string) (func(
 			d, err := rd.Next()
 			if errors.Is(err, io.EOF) {
 				g.reportRead(rd.Bad, rd.Ignored())
+				for _, n := range rd.Notes {
+					g.note("note: %s", n)
+				}
 			}
 			return d, err
 		}, name, func() {

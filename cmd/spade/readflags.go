@@ -12,16 +12,18 @@ type logOptions struct {
 	skipBad     bool
 	phaseOffset float64
 	format      string
+	dateOrder   string
 }
 
 func (o *logOptions) AddFlags(fs *pflag.FlagSet) {
 	fs.BoolVar(&o.skipBad, "skip-bad", false, "list bad rows and go on with the rest")
 	fs.Float64Var(&o.phaseOffset, "phase-offset", 0, "the phase `DEG` your instrument reports for ferrite; subtracted from every reading")
 	fs.StringVar(&o.format, "input-format", "", "csv or jsonl (default: by file name and content)")
+	fs.StringVar(&o.dateOrder, "date-format", "dmy", "how to read a date such as 03/05/2025: dmy (3 May) or mdy (5 March)")
 }
 
 func (o *logOptions) readOptions() features.ReadOptions {
-	return features.ReadOptions{SkipBad: o.skipBad, PhaseOffset: o.phaseOffset, Format: o.format}
+	return features.ReadOptions{SkipBad: o.skipBad, PhaseOffset: o.phaseOffset, Format: o.format, DateOrder: o.dateOrder}
 }
 
 // readLog reads a whole log (a file name, or - for standard input) and
@@ -37,6 +39,9 @@ func (g *globalOptions) readLog(name string, opts features.ReadOptions) (*featur
 		return nil, err
 	}
 	g.reportRead(log.Bad, log.Ignored)
+	for _, n := range log.Notes {
+		g.note("note: %s", n)
+	}
 	if log.Unlabelled > 0 {
 		g.note("skipped %d unlabelled row(s)", log.Unlabelled)
 	}

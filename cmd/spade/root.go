@@ -12,6 +12,7 @@ import (
 	"strings"
 
 	"github.com/spade-detect/spade/datasets"
+	"github.com/spade-detect/spade/features"
 	"github.com/spf13/cobra"
 	"github.com/spf13/pflag"
 )
@@ -95,7 +96,12 @@ func newRootCommand(g *globalOptions) *cobra.Command {
 	root.PersistentFlags().BoolVarP(&g.quiet, "quiet", "q", false, "no progress display and no notes on stderr")
 	root.PersistentFlags().BoolVarP(&g.verbose, "verbose", "v", false, "more detail on stderr")
 	root.SetFlagErrorFunc(func(_ *cobra.Command, err error) error { return usageError{err} })
-	root.PersistentPreRunE = func(cmd *cobra.Command, _ []string) error { return finiteFloatFlags(cmd) }
+	root.PersistentPreRunE = func(cmd *cobra.Command, _ []string) error {
+		if f := cmd.Flags().Lookup("date-format"); f != nil && f.Value.String() != features.DayFirst && f.Value.String() != features.MonthFirst {
+			return usagef("--date-format: want dmy or mdy, got %q", f.Value.String())
+		}
+		return finiteFloatFlags(cmd)
+	}
 	root.AddCommand(
 		newDemoCommand(g),
 		newFeaturesCommand(g),
@@ -119,8 +125,9 @@ func newRootCommand(g *globalOptions) *cobra.Command {
 // --scenario and --group.
 func registerValueCompletions(c *cobra.Command) {
 	words := map[string][]string{
-		"label": {"material", "shape", "both"},
-		"group": {"site", "date", "month"},
+		"label":       {"material", "shape", "both"},
+		"group":       {"site", "date", "month"},
+		"date-format": {"dmy", "mdy"},
 	}
 	for _, sc := range datasets.Scenarios {
 		words["scenario"] = append(words["scenario"], sc.Name)
