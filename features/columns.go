@@ -223,7 +223,6 @@ func parseNumber(cell string) (float64, error) {
 	return v, nil
 }
 
-
 // normaliseLabel case-folds and trims a material or shape.
 func normaliseLabel(s string) string { return strings.ToLower(strings.TrimSpace(s)) }
 
