@@ -50,24 +50,31 @@ func csvSyntax(file string, err error) error {
 }
 
 func (c *csvSource) next() (Dig, error, bool) {
-	rec, err := c.cr.Read()
-	if err == io.EOF {
-		return Dig{}, io.EOF, false
+	for {
+		rec, err := c.cr.Read()
+		if err == io.EOF {
+			return Dig{}, io.EOF, false
+		}
+		if err != nil {
+			var ce *csv.ParseError
+			// A broken quote leaves the rest of the file unreadable; a short
+			// or long row does not.
+			fatal := !errors.As(err, &ce) || !errors.Is(ce.Err, csv.ErrFieldCount)
+			return Dig{}, csvSyntax(c.rd.name, err), fatal
+		}
+		line, _ := c.cr.FieldPos(0)
+		if blankRecord(rec) {
+			// ",,,,": a spreadsheet's empty row, skipped and counted.
+			c.rd.BlankRows++
+			continue
+		}
+		if len(rec) != len(c.s.names) {
+			return Dig{}, &ParseError{File: c.rd.name, Line: line,
+				Err: cause(ErrFieldCount, "the row has %d fields, the header %d", len(rec), len(c.s.names))}, false
+		}
+		d, err := c.row(line, rec)
+		return d, err, false
 	}
-	if err != nil {
-		var ce *csv.ParseError
-		// A broken quote leaves the rest of the file unreadable; a short or
-		// long row does not.
-		fatal := !errors.As(err, &ce) || !errors.Is(ce.Err, csv.ErrFieldCount)
-		return Dig{}, csvSyntax(c.rd.name, err), fatal
-	}
-	line, _ := c.cr.FieldPos(0)
-	if len(rec) != len(c.s.names) {
-		return Dig{}, &ParseError{File: c.rd.name, Line: line,
-			Err: cause(ErrFieldCount, "the row has %d fields, the header %d", len(rec), len(c.s.names))}, false
-	}
-	d, err := c.row(line, rec)
-	return d, err, false
 }
 
 func (c *csvSource) row(line int, rec []string) (Dig, error) {
@@ -162,12 +169,15 @@ func (c *csvSource) row(line int, rec []string) (Dig, error) {
 // pair reads the two cells of one reading.
 func (c *csvSource) pair(hz int, polar bool, rec []string, ia, ib int, perr func(int, error) error) (Reading, error) {
 	va, vb := strings.TrimSpace(rec[ia]), strings.TrimSpace(rec[ib])
+	if va == "" && vb == "" {
+		return Reading{}, perr(ia, cause(ErrFreqSet, "no reading at %d Hz, which the header lists", hz))
+	}
 	if va == "" || vb == "" {
 		col := ia
 		if va != "" {
 			col = ib
 		}
-		return Reading{}, perr(col, cause(ErrFreqSet, "no reading at %d Hz, which the header lists", hz))
+		return Reading{}, perr(col, cause(ErrMissingValue, "%s is empty (its partner %s is not)", c.s.names[col], c.s.names[ia+ib-col]))
 	}
 	a, err := parseNumber(va)
 	if err != nil {
@@ -182,4 +192,14 @@ func (c *csvSource) pair(hz int, polar bool, rec []string, ia, ib int, perr func
 		return Reading{}, perr([]int{ia, ib}[which], err)
 	}
 	return rd, nil
+}
+
+// blankRecord reports a row with nothing in any cell.
+func blankRecord(rec []string) bool {
+	for _, v := range rec {
+		if strings.TrimSpace(v) != "" {
+			return false
+		}
+	}
+	return true
 }

@@ -91,4 +91,5 @@ type Log struct {
 	Bad          []*ParseError
 	Unlabelled   int      // rows skipped under ReadOptions.SkipUnlabelled
 	Notes        []string // remarks for the user (Reader.Notes)
+	BlankRows    int      // empty rows skipped
 }

@@ -59,6 +59,8 @@ type Reader struct {
 	Bad []*ParseError
 	// Unlabelled counts the rows skipped under SkipUnlabelled.
 	Unlabelled int
+	// BlankRows counts the empty rows skipped (",,,," at a sheet's end).
+	BlankRows int
 	// Notes are remarks for the user: unreadable dates (the digs are kept
 	// without them), how ambiguous dates were read.
 	Notes []string
@@ -243,6 +245,7 @@ func ReadLog(r io.Reader, name string, opts ReadOptions) (*Log, error) {
 		log.Digs = append(log.Digs, d)
 	}
 	log.Freqs, log.Ignored, log.Bad, log.Unlabelled, log.Notes = rd.freqs, rd.ignored, rd.Bad, rd.Unlabelled, rd.Notes
+	log.BlankRows = rd.BlankRows
 	log.HasDisplayID = rd.HasDisplayID()
 	for i := range log.Digs {
 		if log.Digs[i].Ground != nil {

@@ -42,6 +42,9 @@ func (g *globalOptions) readLog(name string, opts features.ReadOptions) (*featur
 	for _, n := range log.Notes {
 		g.note("note: %s", n)
 	}
+	if log.BlankRows > 0 && g.verbose {
+		g.note("skipped %d empty row(s)", log.BlankRows)
+	}
 	if log.Unlabelled > 0 {
 		g.note("skipped %d unlabelled row(s)", log.Unlabelled)
 	}
