@@ -101,22 +101,12 @@ func TestDatesAsSpreadsheetsWriteThem(t *testing.T) {
 
 func TestBlankRowsAndEmptyCells(t *testing.T) {
 	in := "dig,material,shape,phase_5k,amp_5k,phase_10k,amp_10k\na,iron,nail,20,0.5,25,0.4\n,,,,,,\n , ,,,,,\nb,gold,ring,120,0.5,130,0.6\n,,,,,,\n"
-	rd, err := NewReader(strings.NewReader(in), "blank.csv", ReadOptions{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	n := 0
-	for {
-		if _, err := rd.Next(); err != nil {
-			break
-		}
-		n++
-	}
+	rd, n := streamDigs(t, in, "blank.csv", ReadOptions{})
 	if n != 2 || rd.BlankRows != 3 {
 		t.Errorf("%d digs, %d blank rows; want 2 and 3", n, rd.BlankRows)
 	}
 	// A forgotten amplitude is named as empty, not as a frequency-set error.
-	_, err = ReadLog(strings.NewReader("dig,phase_5k,amp_5k,phase_10k,amp_10k\na,20,0.5,25,\n"), "e.csv", ReadOptions{})
+	_, err := ReadLog(strings.NewReader("dig,phase_5k,amp_5k,phase_10k,amp_10k\na,20,0.5,25,\n"), "e.csv", ReadOptions{})
 	if !errors.Is(err, ErrMissingValue) || !strings.Contains(err.Error(), "e.csv:2: amp_10k: missing value, amp_10k is empty") {
 		t.Errorf("error %v", err)
 	}

@@ -140,9 +140,10 @@ func TestSkipBadListsEveryRow(t *testing.T) {
 	}
 }
 
-func TestSkipUnlabelledCounts(t *testing.T) {
-	in := "dig,material,shape,phase_5000,amp_5000\nr1,gold,ring,120,0.5\nr2,,,120,0.4\n"
-	rd, err := NewReader(strings.NewReader(in), "u.csv", ReadOptions{Require: LabelBoth, SkipUnlabelled: true})
+// streamDigs reads a log to its end and counts the digs it gives.
+func streamDigs(t *testing.T, in, name string, opts ReadOptions) (*Reader, int) {
+	t.Helper()
+	rd, err := NewReader(strings.NewReader(in), name, opts)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -153,6 +154,12 @@ func TestSkipUnlabelledCounts(t *testing.T) {
 		}
 		n++
 	}
+	return rd, n
+}
+
+func TestSkipUnlabelledCounts(t *testing.T) {
+	in := "dig,material,shape,phase_5000,amp_5000\nr1,gold,ring,120,0.5\nr2,,,120,0.4\n"
+	rd, n := streamDigs(t, in, "u.csv", ReadOptions{Require: LabelBoth, SkipUnlabelled: true})
 	if n != 1 || rd.Unlabelled != 1 {
 		t.Errorf("kept %d, skipped %d unlabelled; want 1 and 1", n, rd.Unlabelled)
 	}
