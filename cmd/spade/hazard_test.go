@@ -229,3 +229,14 @@ func TestCompletionOffersFlagValues(t *testing.T) {
 		t.Errorf("--top -3: exit %d, %q", code, stderr)
 	}
 }
+
+func TestTrainToStandardOutput(t *testing.T) {
+	_, _, history, _, _ := demoModel(t)
+	out, stderr, code := spade(t, "", "train", history, "-o", "-", "--trees", "3", "--no-screen", "-q")
+	if code != 0 || !strings.HasPrefix(out, "SPADEMDL") || !strings.Contains(stderr, "Trained on") {
+		t.Fatalf("exit %d, stdout %.20q, stderr %.200q", code, out, stderr)
+	}
+	if _, err := os.Stat("-"); err == nil {
+		t.Error("a file named - was written")
+	}
+}

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bufio"
 	"context"
 	"encoding/json"
 	"fmt"
@@ -64,6 +65,9 @@ func runTrain(ctx context.Context, g *globalOptions, opts trainOptions, args []s
 	if opts.trees < 1 {
 		return usagef("--trees must be at least 1")
 	}
+	if opts.output == "-" && stderrIsTerminal(g.stdout) {
+		return usagef("-o - writes the model (binary) to standard output, which is a terminal here: give a file name, or pipe it")
+	}
 	if err := opts.format.check(); err != nil {
 		return err
 	}
@@ -84,7 +88,17 @@ func runTrain(ctx context.Context, g *globalOptions, opts trainOptions, args []s
 	if err != nil {
 		return err
 	}
-	if err := bundle.Save(opts.output); err != nil {
+	if opts.output == "-" {
+		// The model goes to standard output; the report, to stderr.
+		bw := bufio.NewWriter(g.stdout)
+		if err := bundle.Encode(bw); err != nil {
+			return err
+		}
+		if err := bw.Flush(); err != nil {
+			return err
+		}
+		g.stdout = g.stderr
+	} else if err := bundle.Save(opts.output); err != nil {
 		return fmt.Errorf("train: %w", err)
 	}
 	if opts.format.json() {
