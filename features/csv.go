@@ -44,6 +44,11 @@ func newCSVSource(r io.Reader, rd *Reader) (*csvSource, error) {
 func csvSyntax(file string, err error) error {
 	var ce *csv.ParseError
 	if errors.As(err, &ce) {
+		// A quote left open runs to the end of the file: the error is where
+		// the field began (StartLine), not where the reader gave up.
+		if errors.Is(ce.Err, csv.ErrQuote) || errors.Is(ce.Err, csv.ErrBareQuote) {
+			return &ParseError{File: file, Line: ce.StartLine, Column: fmt.Sprintf("column %d", ce.Column), Err: fmt.Errorf("%w CSV: a quoted field that starts here is not closed (%v); close the quote or remove it", ErrSyntax, ce.Err)}
+		}
 		return &ParseError{File: file, Line: ce.Line, Column: fmt.Sprintf("column %d", ce.Column), Err: fmt.Errorf("%w CSV: %v", ErrSyntax, ce.Err)}
 	}
 	return &ParseError{File: file, Err: fmt.Errorf("%w CSV: %v", ErrSyntax, err)}

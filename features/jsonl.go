@@ -58,6 +58,10 @@ func (j *jsonlSource) row(b []byte) (Dig, error) {
 	if err := json.Unmarshal(b, &obj); err != nil {
 		return Dig{}, perr("", fmt.Errorf("%w JSON: %v", ErrSyntax, err))
 	}
+	if dup := duplicateKey(b); dup != "" {
+		// encoding/json keeps the last of two equal keys without a word.
+		return Dig{}, perr(dup, fmt.Errorf("%w JSON: key %q appears twice in the object; keep one", ErrSyntax, dup))
+	}
 	d := Dig{Line: j.line, DepthCM: math.NaN(), DisplayID: math.NaN()}
 	var readings, ground []jsonReading
 	haveReadings := false
@@ -235,4 +239,31 @@ func jsonNumber(raw json.RawMessage) (float64, error) {
 		return 0, cause(ErrNotFinite, "got %s", raw)
 	}
 	return v, nil
+}
+
+// duplicateKey is the first top-level key of a JSON object that appears
+// twice (compared as spade reads keys, case-folded), or "".
+func duplicateKey(b []byte) string {
+	dec := json.NewDecoder(bytes.NewReader(b))
+	if t, err := dec.Token(); err != nil || t != json.Delim('{') {
+		return ""
+	}
+	seen := map[string]bool{}
+	for dec.More() {
+		t, err := dec.Token()
+		if err != nil {
+			return ""
+		}
+		key, _ := t.(string)
+		k := strings.ToLower(key)
+		if seen[k] {
+			return key
+		}
+		seen[k] = true
+		var skip json.RawMessage
+		if err := dec.Decode(&skip); err != nil {
+			return ""
+		}
+	}
+	return ""
 }

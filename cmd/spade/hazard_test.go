@@ -240,3 +240,16 @@ func TestTrainToStandardOutput(t *testing.T) {
 		t.Error("a file named - was written")
 	}
 }
+
+func TestOutputFolderCheckedFirst(t *testing.T) {
+	_, _, history, _, _ := demoModel(t)
+	for _, args := range [][]string{
+		{"train", history, "-o", "/no/such/folder/m.spade"},
+		{"overlap", history, "--plot", "/no/such/folder/o.png"},
+	} {
+		_, stderr, code := spade(t, "", args...)
+		if code != 2 || !strings.Contains(stderr, "the folder /no/such/folder does not exist") {
+			t.Errorf("%v: exit %d, %q", args, code, stderr)
+		}
+	}
+}

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bufio"
+	"fmt"
 	"io"
 	"os"
 	"path/filepath"
@@ -38,6 +39,9 @@ func checkOutputs(outputs map[string]string, inputs ...string) error {
 		if out == "" || out == "-" {
 			continue
 		}
+		if err := writableFolder(flag, out); err != nil {
+			return err
+		}
 		oi, oerr := os.Stat(out)
 		oabs, _ := filepath.Abs(out)
 		for _, in := range inputs {
@@ -55,5 +59,23 @@ func checkOutputs(outputs map[string]string, inputs ...string) error {
 			}
 		}
 	}
+	return nil
+}
+
+// writableFolder checks, before the work, that an output's folder exists
+// and takes a new file: a read-only folder or a typo in the path is said at
+// once, not after a whole training.
+func writableFolder(flag, out string) error {
+	dir := filepath.Dir(out)
+	if fi, err := os.Stat(dir); err != nil || !fi.IsDir() {
+		return usagef("%s %s: the folder %s does not exist; create it or choose another path", flag, out, dir)
+	}
+	f, err := os.CreateTemp(dir, ".spade-check-*")
+	if err != nil {
+		return fmt.Errorf("%s %s: cannot write in the folder %s: %w", flag, out, dir, err)
+	}
+	name := f.Name()
+	f.Close()
+	os.Remove(name)
 	return nil
 }
