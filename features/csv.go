@@ -1,6 +1,8 @@
 package features
 
 import (
+	"bufio"
+	"bytes"
 	"encoding/csv"
 	"errors"
 	"fmt"
@@ -15,14 +17,29 @@ type csvSource struct {
 	cr     *csv.Reader
 	s      *schema
 	header int // line of the header row
+	// decimalComma is set for a semicolon-separated file, as spreadsheets
+	// write CSV where the comma is the decimal mark: "0,5" is 0.5.
+	decimalComma bool
 }
 
 func newCSVSource(r io.Reader, rd *Reader) (*csvSource, error) {
+	semicolons := false
+	if br, ok := r.(*bufio.Reader); ok {
+		head, _ := br.Peek(4096)
+		if i := bytes.IndexByte(head, '\n'); i >= 0 {
+			head = head[:i]
+		}
+		// A header with semicolons and no commas: the other European CSV.
+		semicolons = bytes.IndexByte(head, ';') >= 0 && bytes.IndexByte(head, ',') < 0
+	}
 	cr := csv.NewReader(r)
+	if semicolons {
+		cr.Comma = ';'
+	}
 	cr.Comment = '#'
 	cr.FieldsPerRecord = -1
 	cr.ReuseRecord = true
-	src := &csvSource{rd: rd, cr: cr}
+	src := &csvSource{rd: rd, cr: cr, decimalComma: semicolons}
 	rec, err := cr.Read()
 	if err == io.EOF {
 		return nil, &ParseError{File: rd.name, Err: fmt.Errorf("%w: the file is empty", ErrNoDigs)}
@@ -76,6 +93,11 @@ func (c *csvSource) next() (Dig, error, bool) {
 		if len(rec) != len(c.s.names) {
 			return Dig{}, &ParseError{File: c.rd.name, Line: line,
 				Err: cause(ErrFieldCount, "the row has %d fields, the header %d", len(rec), len(c.s.names))}, false
+		}
+		if c.decimalComma {
+			for i, v := range rec {
+				rec[i] = strings.ReplaceAll(v, ",", ".")
+			}
 		}
 		d, err := c.row(line, rec)
 		return d, err, false

@@ -74,7 +74,7 @@ func ParseDate(s, order string) (date string, ambiguous bool, err error) {
 		y += 2000 // a two-digit year is this century's (our choice)
 	}
 	t := time.Date(y, time.Month(m), d, 0, 0, 0, 0, time.UTC)
-	if y < 1000 || m < 1 || m > 12 || d < 1 || t.Day() != d || t.Month() != time.Month(m) {
+	if y < 1000 || y > 9999 || m < 1 || m > 12 || d < 1 || t.Day() != d || t.Month() != time.Month(m) {
 		return "", false, bad
 	}
 	return t.Format(time.DateOnly), ambiguous, nil

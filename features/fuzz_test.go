@@ -47,7 +47,7 @@ func roundTrip(t *testing.T, data []byte, format string) {
 }
 
 func FuzzReadCSV(f *testing.F) {
-	seedFromTestdata(f, "*.csv", "bad/*.csv")
+	seedFromTestdata(f, "*.csv", "bad/*.csv", "exports/*.csv")
 	f.Fuzz(func(t *testing.T, data []byte) { roundTrip(t, data, "csv") })
 }
 

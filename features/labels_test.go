@@ -2,6 +2,7 @@ package features
 
 import (
 	"errors"
+	"math"
 	"os"
 	"strings"
 	"testing"
@@ -109,5 +110,41 @@ func TestBlankRowsAndEmptyCells(t *testing.T) {
 	_, err := ReadLog(strings.NewReader("dig,phase_5k,amp_5k,phase_10k,amp_10k\na,20,0.5,25,\n"), "e.csv", ReadOptions{})
 	if !errors.Is(err, ErrMissingValue) || !strings.Contains(err.Error(), "e.csv:2: amp_10k: missing value, amp_10k is empty") {
 		t.Errorf("error %v", err)
+	}
+}
+
+func TestSpreadsheetExports(t *testing.T) {
+	// Issue 13: the same two digs as CR-only, UTF-16 with a byte-order
+	// mark, semicolon-separated with decimal commas, and UTF-8 with a BOM
+	// and CRLF all read as the plain file does.
+	read := func(name string) *Log {
+		f, err := os.Open(logs + "exports/" + name)
+		if err != nil {
+			t.Fatal(err)
+		}
+		defer f.Close()
+		log, err := ReadLog(f, name, ReadOptions{})
+		if err != nil {
+			t.Fatalf("%s: %v", name, err)
+		}
+		return log
+	}
+	want := read("reference.csv")
+	for _, name := range []string{"cr-only.csv", "utf16.csv", "semicolon.csv", "utf8-bom-crlf.csv"} {
+		got := read(name)
+		if len(got.Digs) != len(want.Digs) {
+			t.Fatalf("%s: %d digs, want %d", name, len(got.Digs), len(want.Digs))
+		}
+		for i := range want.Digs {
+			w, g := want.Digs[i], got.Digs[i]
+			if g.ID != w.ID || g.Date != w.Date || g.Class(LabelBoth) != w.Class(LabelBoth) || g.DepthCM != w.DepthCM {
+				t.Errorf("%s: dig %d is %+v, want %+v", name, i, g, w)
+			}
+			for k := range w.Readings {
+				if math.Abs(g.Readings[k].Phase()-w.Readings[k].Phase()) > 1e-12 || math.Abs(g.Readings[k].Amp()-w.Readings[k].Amp()) > 1e-12 {
+					t.Errorf("%s: dig %d reading %d is %+v, want %+v", name, i, k, g.Readings[k], w.Readings[k])
+				}
+			}
+		}
 	}
 }

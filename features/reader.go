@@ -10,6 +10,9 @@ import (
 	"math"
 	"os"
 	"strings"
+
+	"golang.org/x/text/encoding/unicode"
+	"golang.org/x/text/transform"
 )
 
 // ReadOptions says how strict a reader is and what it needs.
@@ -96,6 +99,16 @@ func (rd *Reader) date(v string, line int) string {
 // NewReader starts reading a dig log from r; name is used in errors.
 func NewReader(r io.Reader, name string, opts ReadOptions) (*Reader, error) {
 	br := bufio.NewReaderSize(r, 64<<10)
+	// UTF-16 with a byte-order mark (as some spreadsheets save "Unicode
+	// text") is decoded to UTF-8.
+	if b, err := br.Peek(2); err == nil && (bytes.Equal(b, []byte{0xFF, 0xFE}) || bytes.Equal(b, []byte{0xFE, 0xFF})) {
+		br = bufio.NewReaderSize(transform.NewReader(br, unicode.BOMOverride(unicode.UTF8.NewDecoder())), 64<<10)
+	}
+	// Line ends of a lone CR (old spreadsheets on some systems): when the
+	// first 64 KB hold a CR and no LF, every CR is read as LF.
+	if b, _ := br.Peek(64 << 10); bytes.IndexByte(b, '\r') >= 0 && bytes.IndexByte(b, '\n') < 0 {
+		br = bufio.NewReaderSize(crToLF{br}, 64<<10)
+	}
 	// A spreadsheet's UTF-8 byte-order mark is not part of the first cell.
 	if b, err := br.Peek(3); err == nil && bytes.Equal(b, []byte{0xEF, 0xBB, 0xBF}) {
 		br.Discard(3)
@@ -294,4 +307,17 @@ func readingFrom(hz int, polar bool, a, b float64) (Reading, int, error) {
 		return Reading{}, 1, cause(ErrNotPositive, "x and r are both 0, so the amplitude is 0")
 	}
 	return Reading{Hz: hz, X: a, R: b}, 0, nil
+}
+
+// crToLF reads CR as LF.
+type crToLF struct{ r io.Reader }
+
+func (c crToLF) Read(p []byte) (int, error) {
+	n, err := c.r.Read(p)
+	for i := range n {
+		if p[i] == '\r' {
+			p[i] = '\n'
+		}
+	}
+	return n, err
 }
