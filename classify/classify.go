@@ -239,13 +239,8 @@ func (c *Classifier) Classify(d *features.Dig) (*Result, error) {
 		n.Date = b.Training.Dates[n.index]
 		r.Neighbours = append(r.Neighbours, n)
 	}
-	topHazard := false
-	for k, cl := range b.Classes {
-		if cl == r.Top.Class {
-			topHazard = c.hazard[k]
-		}
-	}
-	r.Hazard = c.hazardCheck(d, hazardP, topHazard)
+	// Ranked is a stable sort of the classes, so its first is Argmax's.
+	r.Hazard = c.hazardCheck(d, hazardP, c.hazard[train.Argmax(c.probs)])
 	if r.Hazard.Tier != TierNone {
 		msg := CautionPossible
 		if r.Hazard.Tier == TierLikely {

@@ -85,6 +85,39 @@ type Evaluation struct {
 	BaselineProbs [][]float64 `json:"-"`
 }
 
+// foldsFor assigns each row its fold: whole groups when o.Groups is set,
+// else stratified. Stratified folds need a dig of every class in every
+// fold, so with fewer digs in the smallest class than folds the folds are
+// lowered to its count (but not below 2). The warnings say so, and what
+// HistoryNotes says of the history.
+func foldsFor(ds *Dataset, o EvalOptions) (fold []int, folds int, warnings []string, err error) {
+	n := ds.Rows()
+	counts := ds.ClassCounts()
+	cc := map[string]int{}
+	for k, c := range counts {
+		cc[ds.Classes[k]] = c
+	}
+	if o.Groups != nil {
+		if len(o.Groups) != n {
+			panic("train: length mismatch")
+		}
+		if fold, folds, err = GroupFolds(o.Groups, o.Folds); err != nil {
+			return nil, 0, nil, err
+		}
+		return fold, folds, HistoryNotes(n, cc), nil
+	}
+	folds = o.Folds
+	if least := slices.Min(counts); least < folds && folds > 2 {
+		folds = max(2, least)
+		warnings = append(warnings, fmt.Sprintf("folds lowered from %d to %d: the smallest class has %d digs", o.Folds, folds, least))
+	}
+	if slices.Min(counts) < 2 {
+		warnings = append(warnings, "a class with a single dig cannot be both learnt and held out: its figures are those of a class the model never saw")
+	}
+	warnings = append(warnings, HistoryNotes(n, cc)...)
+	return StratifiedFolds(ds.Y, len(ds.Classes), folds, o.Seed), folds, warnings, nil
+}
+
 // CrossValidate runs stratified k-fold cross-validation of the forest and of
 // the single-number baseline on the same folds.
 func CrossValidate(ctx context.Context, ds *Dataset, o EvalOptions) (*Evaluation, error) {
@@ -97,38 +130,11 @@ func CrossValidate(ctx context.Context, ds *Dataset, o EvalOptions) (*Evaluation
 	}
 	fo := o.Forest.withDefaults(len(ds.Names))
 	K := len(ds.Classes)
-	requested := o.Folds
-	var warnings []string
-	// Stratified folds need a dig of every class in every fold: with
-	// fewer digs in the smallest class than folds, the folds are lowered to
-	// its count (but not below 2) and the report says so.
-	counts := ds.ClassCounts()
-	least := slices.Min(counts)
-	if least < o.Folds && o.Folds > 2 {
-		was := o.Folds
-		o.Folds = max(2, least)
-		warnings = append(warnings, fmt.Sprintf("folds lowered from %d to %d: the smallest class has %d digs", was, o.Folds, least))
+	fold, folds, warnings, err := foldsFor(ds, o)
+	if err != nil {
+		return nil, err
 	}
-	if least < 2 {
-		warnings = append(warnings, "a class with a single dig cannot be both learnt and held out: its figures are those of a class the model never saw")
-	}
-	cc := map[string]int{}
-	for k, n := range counts {
-		cc[ds.Classes[k]] = n
-	}
-	warnings = append(warnings, HistoryNotes(n, cc)...)
-	fold := StratifiedFolds(ds.Y, K, o.Folds, o.Seed)
-	if o.Groups != nil {
-		if len(o.Groups) != n {
-			panic("train: length mismatch")
-		}
-		var err error
-		if fold, o.Folds, err = GroupFolds(o.Groups, requested); err != nil {
-			return nil, err
-		}
-		warnings = warnings[:0]
-		warnings = append(warnings, HistoryNotes(n, cc)...)
-	}
+	o.Folds = folds
 	axis := BaselineAxis(ds.Names)
 	ev := &Evaluation{Folds: o.Folds, Seed: o.Seed, Digs: n, Classes: ds.Classes, BaselineAxis: ds.Names[axis],
 		Probs: make([][]float64, n), BaselineProbs: make([][]float64, n), Warnings: warnings}

@@ -118,7 +118,10 @@ type ScreenOptions struct {
 	// MaxFlagged is the most of the history's own digs that "cannot be
 	// ruled out" may flag, out of bag; default 0.15.
 	MaxFlagged float64
-	Progress   func(done int)
+	// Calibration, when set, is the history's (datasets.Calibrate), so
+	// that screens fitted to one history again and again calibrate once.
+	Calibration *datasets.Calibration
+	Progress    func(done int)
 }
 
 // ErrNoScreen says the history cannot carry a screen (too few digs or no
@@ -131,7 +134,7 @@ const maxScreenHistory = 20000
 
 // TrainScreen fits the ordnance screen to a history: the library at the
 // history's frequencies and calibration against the history's digs.
-func TrainScreen(ctx context.Context, log *features.Log, spec *features.FeatureSpec, o ScreenOptions) (*Screen, error) {
+func TrainScreen(ctx context.Context, log *features.Log, spec *features.FeatureSpec, o ScreenOptions) (s *Screen, err error) {
 	if o.Trees <= 0 {
 		o.Trees = 100
 	}
@@ -144,15 +147,17 @@ func TrainScreen(ctx context.Context, log *features.Log, spec *features.FeatureS
 	if o.Library <= 0 {
 		o.Library = min(max(len(log.Digs), 1000), 4000)
 	}
-	cal, err := datasets.Calibrate(log)
-	if err != nil {
+	var cal datasets.Calibration
+	if o.Calibration != nil {
+		cal = *o.Calibration
+	} else if cal, err = datasets.Calibrate(log); err != nil {
 		return nil, fmt.Errorf("%w: %v", ErrNoScreen, err)
 	}
 	lib, _, err := datasets.Library(datasets.LibraryOptions{Freqs: log.Freqs, N: o.Library, Seed: o.Seed ^ 0x5c7ee, Cal: cal, Exclude: o.Exclude})
 	if err != nil {
 		return nil, fmt.Errorf("%w: %v", ErrNoScreen, err)
 	}
-	s := &Screen{
+	s = &Screen{
 		Library: datasets.LibraryVersion, LibraryDigs: len(lib), Hazards: o.Hazards, Trees: o.Trees,
 		Calibration: ScreenCal{Gain: cal.Gain, NoiseFloor: cal.NoiseFloor, Threshold: cal.Threshold, FromDepth: cal.FromDepth, Grounds: len(cal.Grounds)},
 	}
@@ -221,15 +226,15 @@ func TrainScreen(ctx context.Context, log *features.Log, spec *features.FeatureS
 		if err != nil {
 			return nil, err
 		}
-		sf := &ScreenForest{Names: f.Names, forest: f, Likely: withSize}
-		sf.fitTiers(oob, own, o.MaxFlagged)
-		for i := range own {
-			v := oob[i][1]
-			if math.IsNaN(v) {
-				v = 1
+		scores := make([]float64, len(oob))
+		for i, p := range oob {
+			scores[i] = p[1]
+			if math.IsNaN(p[1]) {
+				scores[i] = 1 // seen by every tree: counted as flagged, never as missed
 			}
-			sf.historyOOB = append(sf.historyOOB, v)
 		}
+		sf := &ScreenForest{Names: f.Names, forest: f, Likely: withSize, historyOOB: scores[:len(own)]}
+		sf.fitTiers(scores, own, o.MaxFlagged)
 		return sf, nil
 	}
 	plain, err := fit(false)
@@ -254,20 +259,12 @@ func TrainScreen(ctx context.Context, log *features.Log, spec *features.FeatureS
 // munition always warns. High, "likely ordnance", is the least score from
 // a majority on that flags at most maxLikelyFlags of the history's digs: a
 // reading more munition-like than nearly everything the user has dug.
-func (sf *ScreenForest) fitTiers(oob [][]float64, own []bool, maxFlagged float64) {
-	score := func(i int) float64 {
-		if math.IsNaN(oob[i][1]) {
-			return 1 // seen by every tree: counted as flagged, never as missed
-		}
-		return oob[i][1]
-	}
-	var libScores, digScores []float64
-	for i := range oob {
-		switch {
-		case i >= len(own):
-			libScores = append(libScores, score(i))
-		case !own[i]:
-			digScores = append(digScores, score(i))
+func (sf *ScreenForest) fitTiers(scores []float64, own []bool, maxFlagged float64) {
+	libScores := scores[len(own):]
+	var digScores []float64
+	for i, h := range own {
+		if !h {
+			digScores = append(digScores, scores[i])
 		}
 	}
 	slices.Sort(digScores)
@@ -302,7 +299,7 @@ func (sf *ScreenForest) fitTiers(oob [][]float64, own []bool, maxFlagged float64
 	for i, h := range own {
 		if h {
 			owned++
-			if score(i) >= sf.Low {
+			if scores[i] >= sf.Low {
 				ownCaught++
 			}
 		}

@@ -2,6 +2,7 @@ package train
 
 import (
 	"context"
+	"fmt"
 	"math"
 
 	"github.com/spade-detect/spade/datasets"
@@ -47,6 +48,13 @@ const heldOutPerGroup = 200
 // user's digs are keepers (nil: none are, and every non-hazard dig counts
 // as trash). Progress, when set in o, counts every screen tree grown.
 func EvaluateScreen(ctx context.Context, log *features.Log, spec *features.FeatureSpec, o ScreenOptions, keeper func(*features.Dig) bool) (*ScreenEvaluation, error) {
+	// One calibration serves the full screen, every held-out one and the
+	// held-out groups' readings.
+	cal, err := datasets.Calibrate(log)
+	if err != nil {
+		return nil, fmt.Errorf("%w: %v", ErrNoScreen, err)
+	}
+	o.Calibration = &cal
 	full, err := TrainScreen(ctx, log, spec, o)
 	if err != nil {
 		return nil, err
@@ -81,10 +89,6 @@ func EvaluateScreen(ctx context.Context, log *features.Log, spec *features.Featu
 	ev.TrashFlagged = share(trashFlag, ev.TrashDigs)
 	ev.OwnHazardCaught = share(ownFlag, ev.OwnHazardDigs)
 
-	cal, err := datasets.Calibrate(log)
-	if err != nil {
-		return nil, err
-	}
 	var n, caught, caughtDepth int
 	var buf []float64
 	for gi, g := range datasets.MunitionGroups() {

@@ -166,7 +166,11 @@ func groupsOf(log *features.Log, by string) ([]string, error) {
 			return nil, usagef("--group: want site, date or month, got %q", by)
 		}
 		if g == "" {
-			return nil, &features.ParseError{File: log.Name, Line: d.Line, Column: by, Err: fmt.Errorf("%w: --group %s needs a %s on every row", features.ErrMissingValue, by, map[bool]string{true: "site", false: "date"}[by == "site"])}
+			column := "date"
+			if by == "site" {
+				column = "site"
+			}
+			return nil, &features.ParseError{File: log.Name, Line: d.Line, Column: column, Err: fmt.Errorf("%w: --group %s needs a %s on every row", features.ErrMissingValue, by, column)}
 		}
 		groups[i] = g
 	}

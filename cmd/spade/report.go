@@ -113,8 +113,12 @@ func writeScreenEvaluation(w io.Writer, s *train.ScreenEvaluation) {
 	if s.Depth {
 		col = "with depth"
 	}
+	withDepth := ""
+	if s.Depth {
+		withDepth = fmt.Sprintf(", %.0f%% with their depth", 100*s.CaughtDepth)
+	}
 	fmt.Fprint(w, wrap(fmt.Sprintf("Simulated munitions (%s) read as your instrument would, each group scored by a screen fitted without it: %.0f%% warned of by phase and amplitude alone%s.",
-		s.Library, 100*s.Caught, map[bool]string{true: fmt.Sprintf(", %.0f%% with their depth", 100*s.CaughtDepth), false: ""}[s.Depth]), 78, "  "))
+		s.Library, 100*s.Caught, withDepth), 78, "  "))
 	fmt.Fprintf(w, "  %-32s %9s %11s\n", "held-out group", "no depth", col)
 	for _, gc := range s.Groups {
 		d := pct(gc.Caught)

@@ -143,24 +143,13 @@ func hazardStatus(b *train.Bundle) hazardCheckStatus {
 	if b.Screen != nil {
 		return hazardCheckStatus{Available: true, Screen: b.Screen, Text: b.Screen.Describe() + "."}
 	}
+	defaults := classify.DefaultValues()
 	for _, c := range b.Classes {
-		if train.IsHazard(classDig(c, b.Label), train.DefaultHazards) {
+		if defaults.IsHazard(c) {
 			return hazardCheckStatus{Available: true, Text: "ordnance screen off: the hazard check rests on your history's own hazardous classes alone."}
 		}
 	}
-	return hazardCheckStatus{Text: classify.UnavailableNote(b, classify.DefaultValues()) + "."}
-}
-
-// classDig is a dig standing for a class name under a label, for IsHazard.
-func classDig(class string, label features.Label) *features.Dig {
-	switch label {
-	case features.LabelMaterial:
-		return &features.Dig{Material: class}
-	case features.LabelShape:
-		return &features.Dig{Shape: class}
-	}
-	m, s := features.SplitClass(class)
-	return &features.Dig{Material: m, Shape: s}
+	return hazardCheckStatus{Text: classify.UnavailableNote(b, defaults) + "."}
 }
 
 // trainNotes are what the user must know of the history a model learnt:
