@@ -34,6 +34,9 @@ type Classifier struct {
 	nb        []Neighbour
 	screenBuf []float64
 	warnings  []string
+	// unavailable is UnavailableNote when the model cannot warn, else "":
+	// said in every result, so made once.
+	unavailable string
 }
 
 // New prepares a classifier: the whitened training space and the training
@@ -48,6 +51,9 @@ func New(b *train.Bundle, values *Values) *Classifier {
 		c.hazard = append(c.hazard, values.IsHazard(cl))
 		c.worth = append(c.worth, values.ValueOf(cl))
 	}
+	if !c.HazardAvailable() {
+		c.unavailable = UnavailableNote(b, values)
+	}
 	c.warnings = c.Warnings()
 	return c
 }
@@ -55,15 +61,15 @@ func New(b *train.Bundle, values *Values) *Classifier {
 // Clone is a classifier sharing this one's model, space and reference
 // scores (read only) with scratch space of its own, for another goroutine.
 func (c *Classifier) Clone() *Classifier {
-	return &Classifier{bundle: c.bundle, values: c.values, space: c.space, reference: c.reference, hazard: c.hazard, worth: c.worth, warnings: c.warnings}
+	return &Classifier{bundle: c.bundle, values: c.values, space: c.space, reference: c.reference, hazard: c.hazard, worth: c.worth, warnings: c.warnings, unavailable: c.unavailable}
 }
 
 // Warnings are remarks about the model and values as a whole, for the user
 // to read once: above all, when the model cannot warn of ordnance.
 func (c *Classifier) Warnings() []string {
 	var w []string
-	if !c.HazardAvailable() {
-		w = append(w, UnavailableNote(c.bundle, c.values))
+	if c.unavailable != "" {
+		w = append(w, c.unavailable)
 	}
 	return append(w, train.HistoryNotes(c.bundle.Summary.Digs, c.bundle.Summary.ClassCounts)...)
 }
@@ -291,7 +297,7 @@ func (c *Classifier) novelty(score float64) Novelty {
 // hazardous top class is always at least "cannot be ruled out". Anything
 // not a number counts as a hazard: the check fails safe.
 func (c *Classifier) hazardCheck(d *features.Dig, hazardP float64, topHazard bool) HazardCheck {
-	h := HazardCheck{Available: c.HazardAvailable(), Tier: TierNone, History: hazardP}
+	h := HazardCheck{Available: c.unavailable == "", Tier: TierNone, History: hazardP, Note: c.unavailable}
 	tier := 0
 	switch {
 	case math.IsNaN(hazardP) || hazardP >= 0.5:
@@ -322,9 +328,6 @@ func (c *Classifier) hazardCheck(d *features.Dig, hazardP float64, topHazard boo
 		h.Tier = TierLikely
 	case 1:
 		h.Tier = TierPossible
-	}
-	if !h.Available {
-		h.Note = UnavailableNote(c.bundle, c.values)
 	}
 	return h
 }
