@@ -133,7 +133,7 @@ func (j *jsonlSource) row(b []byte) (Dig, error) {
 	if j.rd.freqs == nil {
 		j.rd.freqs = freqs
 	} else if !slices.Equal(freqs, j.rd.freqs) {
-		return d, perr("readings", cause(ErrFreqSet, "this row has %v Hz, the log's first row %v Hz", freqs, j.rd.freqs))
+		return d, perr("readings", cause(ErrFreqSet, "this row has %s, the log's first row %s", HzList(freqs), HzList(j.rd.freqs)))
 	}
 	if len(ground) > 0 {
 		if d.Ground, err = j.convert("ground", ground, perr); err != nil {
@@ -144,7 +144,7 @@ func (j *jsonlSource) row(b []byte) (Dig, error) {
 			gf[i] = g.Hz
 		}
 		if !slices.Equal(gf, freqs) {
-			return d, perr("ground", cause(ErrFreqSet, "the ground reading has %v Hz, the target's %v Hz", gf, freqs))
+			return d, perr("ground", cause(ErrFreqSet, "the ground reading has %s, the target's %s", HzList(gf), HzList(freqs)))
 		}
 	}
 	return d, nil

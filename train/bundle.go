@@ -9,6 +9,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"math"
 	"os"
 	"slices"
@@ -166,7 +167,7 @@ func (b *Bundle) Save(path string) error {
 func Load(path string) (*Bundle, error) {
 	f, err := os.Open(path)
 	if err != nil {
-		return nil, fmt.Errorf("train: cannot read model %s: %w", path, err)
+		return nil, fmt.Errorf("cannot read model %s: %w", path, pathCause(err))
 	}
 	defer f.Close()
 	// The magic first, and then no more than the header says: a file that
@@ -181,7 +182,7 @@ func Load(path string) (*Bundle, error) {
 	}
 	rest, err := io.ReadAll(io.LimitReader(f, int64(plen)+sha256.Size+1))
 	if err != nil {
-		return nil, fmt.Errorf("train: reading %s: %w", path, err)
+		return nil, fmt.Errorf("cannot read model %s: %w", path, pathCause(err))
 	}
 	b, err := Unmarshal(append(head[:], rest...))
 	if err != nil {
@@ -479,3 +480,13 @@ func decodeForest(r *bytes.Reader, features, classes int) (*Forest, error) {
 }
 
 func sha256Sum(b []byte) [32]byte { return sha256.Sum256(b) }
+
+// pathCause drops the operation and path that an *fs.PathError repeats, so a
+// message says "cannot read model m.spade: no such file or directory" once.
+func pathCause(err error) error {
+	var pe *fs.PathError
+	if errors.As(err, &pe) {
+		return pe.Err
+	}
+	return err
+}

@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"math"
 	"slices"
-	"strings"
 
 	"github.com/spade-detect/spade/datasets"
 	"github.com/spade-detect/spade/features"
@@ -405,12 +404,4 @@ func (s *Screen) Describe() string {
 }
 
 // HazardNames lists hazards as a person writes a list.
-func HazardNames(h []string) string {
-	switch len(h) {
-	case 0:
-		return "none"
-	case 1:
-		return h[0]
-	}
-	return strings.Join(h[:len(h)-1], ", ") + " and " + h[len(h)-1]
-}
+func HazardNames(h []string) string { return features.ListAnd(h) }

@@ -146,3 +146,37 @@ func TestFloatFlagsMustBeFinite(t *testing.T) {
 		}
 	}
 }
+
+// TestMessagesAPersonCanActOn checks the wording of usage and open errors
+// against what issue 13 asks for: what the command takes and what it got,
+// the command's own help, and no Go internals (strconv, arg(s), [a b]).
+func TestMessagesAPersonCanActOn(t *testing.T) {
+	dir := t.TempDir()
+	for _, c := range []struct {
+		args []string
+		code int
+		want []string
+	}{
+		{[]string{"train"}, exitUsage, []string{"spade train takes LOG -o MODEL; it was given nothing", "Run 'spade train --help' for usage."}},
+		{[]string{"evaluate", "a", "b"}, exitUsage, []string{`it was given 2 arguments ("a" and "b")`, "Run 'spade evaluate --help'"}},
+		{[]string{"demo", "x"}, exitUsage, []string{`spade demo takes no arguments; it was given "x"`}},
+		{[]string{"train", "--trees", "x", "log.csv"}, exitUsage, []string{`--trees wants a whole number, got "x"`}},
+		{[]string{"evaluate", "--tres", "5", "log.csv"}, exitUsage, []string{"unknown flag: --tres (did you mean --trees?)"}},
+		{[]string{"classify", "--model", filepath.Join(dir, "nosuch.spade"), "r.csv"}, exitError, []string{"cannot read model " + filepath.Join(dir, "nosuch.spade") + ": no such file or directory"}},
+	} {
+		_, stderr, code := spade(t, "", c.args...)
+		if code != c.code {
+			t.Errorf("%v: exit %d, want %d (%s)", c.args, code, c.code, stderr)
+		}
+		for _, w := range c.want {
+			if !strings.Contains(stderr, w) {
+				t.Errorf("%v: stderr %q lacks %q", c.args, stderr, w)
+			}
+		}
+		for _, bad := range []string{"strconv.", "arg(s)", "train: train", "open " + dir} {
+			if strings.Contains(stderr, bad) {
+				t.Errorf("%v: stderr %q has %q", c.args, stderr, bad)
+			}
+		}
+	}
+}

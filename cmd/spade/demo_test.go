@@ -1,8 +1,11 @@
 package main
 
 import (
+	"bufio"
+	"bytes"
 	"image/png"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"slices"
 	"strings"
@@ -48,5 +51,41 @@ func TestDemoGolden(t *testing.T) {
 		if len([]rune(line)) > 80 {
 			t.Errorf("line %d over 80 columns: %q", i+1, line)
 		}
+	}
+}
+
+// TestDemoFinishesWhenItsPipeCloses runs the demo as its own process with
+// its output read for one line and then closed (spade demo | head -1): the
+// model and the four plots must still be written, and nothing on stderr.
+func TestDemoFinishesWhenItsPipeCloses(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs the whole demo in a child process")
+	}
+	dir := t.TempDir()
+	cmd := exec.Command(os.Args[0], "-test.run=^$", "--", "demo", "-o", dir, "--trees", "20", "-q")
+	cmd.Env = append(os.Environ(), "SPADE_TEST_MAIN=1")
+	var stderr bytes.Buffer
+	cmd.Stderr = &stderr
+	out, err := cmd.StdoutPipe()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := cmd.Start(); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := bufio.NewReader(out).ReadString('\n'); err != nil {
+		t.Fatal(err)
+	}
+	out.Close()
+	if err := cmd.Wait(); err != nil {
+		t.Fatalf("demo with a closed pipe: %v (stderr %q)", err, stderr.String())
+	}
+	for _, name := range []string{"demo.spade", "overlap.png", "reliability.png", "confusion.png", "spectra.png"} {
+		if fi, err := os.Stat(filepath.Join(dir, name)); err != nil || fi.Size() == 0 {
+			t.Errorf("%s not written after the pipe closed: %v", name, err)
+		}
+	}
+	if stderr.Len() > 0 {
+		t.Errorf("stderr: %q", stderr.String())
 	}
 }

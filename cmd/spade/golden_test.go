@@ -65,6 +65,17 @@ func demoModel(t *testing.T) (dir, model, history, readings, values string) {
 }
 
 func TestMain(m *testing.M) {
+	// Re-run as the real command, for tests that need a process of its own
+	// (a closed pipe, a signal): SPADE_TEST_MAIN=1 and the arguments after --.
+	if os.Getenv("SPADE_TEST_MAIN") == "1" {
+		for i, a := range os.Args {
+			if a == "--" {
+				os.Args = append([]string{"spade"}, os.Args[i+1:]...)
+				break
+			}
+		}
+		main()
+	}
 	code := m.Run()
 	if demoFiles.dir != "" {
 		os.RemoveAll(demoFiles.dir)

@@ -223,7 +223,7 @@ func analyseOverlap(log *features.Log, ds *train.Dataset, probs [][]float64, val
 			}
 		}
 		if err != nil || j < 0 {
-			return nil, "", usagef("--by %s: the log's frequencies are %v Hz", by, log.Freqs)
+			return nil, "", usagef("--by %s: the log's frequencies are %s", by, features.HzList(log.Freqs))
 		}
 		by = fmt.Sprintf("phase_%d", hz)
 		// The phase as the instrument gave it: the single number a user sees.

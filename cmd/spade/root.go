@@ -10,6 +10,7 @@ import (
 	"runtime/debug"
 	"strconv"
 	"strings"
+	"syscall"
 
 	"github.com/spade-detect/spade/datasets"
 	"github.com/spade-detect/spade/features"
@@ -95,7 +96,7 @@ func newRootCommand(g *globalOptions) *cobra.Command {
 	root.SetVersionTemplate("spade {{.Version}}\n")
 	root.PersistentFlags().BoolVarP(&g.quiet, "quiet", "q", false, "no progress display and no notes on stderr")
 	root.PersistentFlags().BoolVarP(&g.verbose, "verbose", "v", false, "more detail on stderr")
-	root.SetFlagErrorFunc(func(_ *cobra.Command, err error) error { return usageError{err} })
+	root.SetFlagErrorFunc(func(cmd *cobra.Command, err error) error { return usageError{flagError(cmd, err)} })
 	root.PersistentPreRunE = func(cmd *cobra.Command, _ []string) error {
 		if f := cmd.Flags().Lookup("date-format"); f != nil && f.Value.String() != features.DayFirst && f.Value.String() != features.MonthFirst {
 			return usagef("--date-format: want dmy or mdy, got %q", f.Value.String())
@@ -161,17 +162,71 @@ func finiteFloatFlags(cmd *cobra.Command) error {
 	return bad
 }
 
-// wrapArgs turns cobra's argument-count errors into usage errors.
+// wrapArgs turns cobra's argument-count errors ("accepts 1 arg(s), received
+// 0") into usage errors that say what the command takes and what it got.
 func wrapArgs(check cobra.PositionalArgs) cobra.PositionalArgs {
 	if check == nil {
 		return nil
 	}
 	return func(cmd *cobra.Command, args []string) error {
 		if err := check(cmd, args); err != nil {
-			return usageError{err}
+			got := "nothing"
+			switch len(args) {
+			case 0:
+			case 1:
+				got = fmt.Sprintf("%q", args[0])
+			default:
+				got = fmt.Sprintf("%d arguments (%s)", len(args), quotedList(args))
+			}
+			_, takes, _ := strings.Cut(cmd.Use, " ")
+			if takes == "" {
+				return usagef("%s takes no arguments; it was given %s", cmd.CommandPath(), got)
+			}
+			return usagef("%s takes %s; it was given %s", cmd.CommandPath(), takes, got)
 		}
 		return nil
 	}
+}
+
+// quotedList writes strings as a person lists them: "a", "b" and "c".
+func quotedList(items []string) string {
+	q := make([]string, len(items))
+	for i, s := range items {
+		q[i] = strconv.Quote(s)
+	}
+	return features.ListAnd(q)
+}
+
+// flagError rewrites pflag's parse errors ("invalid argument "x" for
+// "--trees" flag: strconv.ParseInt: parsing "x": invalid syntax") into what
+// the flag wants, and suggests the nearest flag for an unknown one.
+func flagError(cmd *cobra.Command, err error) error {
+	var invalid *pflag.InvalidValueError
+	if errors.As(err, &invalid) {
+		f := invalid.GetFlag()
+		want := map[string]string{
+			"int": "a whole number", "int64": "a whole number", "uint": "a whole number",
+			"float64": "a number", "bool": "true or false", "duration": "a duration like 30s",
+		}[f.Value.Type()]
+		if want == "" {
+			return err
+		}
+		return fmt.Errorf("--%s wants %s, got %q", f.Name, want, invalid.GetValue())
+	}
+	var missing *pflag.NotExistError
+	if errors.As(err, &missing) {
+		name := strings.TrimLeft(missing.GetSpecifiedName(), "-")
+		best, bestD := "", 3
+		cmd.Flags().VisitAll(func(f *pflag.Flag) {
+			if d := features.EditDistance(name, f.Name); d < bestD && !f.Hidden {
+				best, bestD = f.Name, d
+			}
+		})
+		if best != "" && len(name) > 1 {
+			return fmt.Errorf("%v (did you mean --%s?)", err, best)
+		}
+	}
+	return err
 }
 
 // run executes one command line and returns the exit code; main and the
@@ -194,15 +249,24 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 	root.SetIn(stdin)
 	root.SetOut(stdout)
 	root.SetErr(stderr)
-	err := root.ExecuteContext(ctx)
+	cmd, err := root.ExecuteContextC(ctx)
 	if err == nil {
+		return exitOK
+	}
+	if errors.Is(err, syscall.EPIPE) {
+		// Whoever read the output stopped reading (| head): nothing to say.
 		return exitOK
 	}
 	fmt.Fprintln(stderr, "spade: "+oneLine(err))
 	var ue usageError
 	switch {
 	case errors.As(err, &ue) || strings.HasPrefix(err.Error(), "unknown command"):
-		fmt.Fprintln(stderr, "Run 'spade --help' for usage.")
+		// The help of the command that was run, not the root's.
+		path := "spade"
+		if cmd != nil {
+			path = cmd.CommandPath()
+		}
+		fmt.Fprintf(stderr, "Run '%s --help' for usage.\n", path)
 		return exitUsage
 	case errors.Is(err, context.Canceled):
 		return exitError
