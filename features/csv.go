@@ -8,7 +8,9 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"strconv"
 	"strings"
+	"unicode/utf8"
 )
 
 // csvSource parses RFC 4180 CSV with a header row.
@@ -20,26 +22,38 @@ type csvSource struct {
 	// decimalComma is set for a semicolon-separated file, as spreadsheets
 	// write CSV where the comma is the decimal mark: "0,5" is 0.5.
 	decimalComma bool
+	capped       *recordCap
+	lastLine     int // the line the last record started on
 }
 
 func newCSVSource(r io.Reader, rd *Reader) (*csvSource, error) {
-	semicolons := false
+	comma := ','
 	if br, ok := r.(*bufio.Reader); ok {
 		head, _ := br.Peek(4096)
 		if i := bytes.IndexByte(head, '\n'); i >= 0 {
 			head = head[:i]
 		}
-		// A header with semicolons and no commas: the other European CSV.
-		semicolons = bytes.IndexByte(head, ';') >= 0 && bytes.IndexByte(head, ',') < 0
+		// A header with no commas: the separator is the one it has. A
+		// spreadsheet saving with semicolons or tabs is one whose locale
+		// writes the decimal comma, so "0,5" is read as 0.5 there.
+		if bytes.IndexByte(head, ',') < 0 {
+			switch {
+			case bytes.IndexByte(head, ';') >= 0:
+				comma = ';'
+			case bytes.IndexByte(head, '\t') >= 0:
+				comma = '\t'
+			case bytes.Count(head, []byte{'|'}) >= 2:
+				return nil, &ParseError{File: rd.name, Line: 1, Err: fmt.Errorf("%w: the header is separated by \"|\"; spade reads commas, semicolons or tabs: export the file again as CSV", ErrEncoding)}
+			}
+		}
 	}
-	cr := csv.NewReader(r)
-	if semicolons {
-		cr.Comma = ';'
-	}
+	capped := &recordCap{r: r}
+	cr := csv.NewReader(capped)
+	cr.Comma = comma
 	cr.Comment = '#'
 	cr.FieldsPerRecord = -1
 	cr.ReuseRecord = true
-	src := &csvSource{rd: rd, cr: cr, decimalComma: semicolons}
+	src := &csvSource{rd: rd, cr: cr, capped: capped, decimalComma: comma != ','}
 	rec, err := cr.Read()
 	if err == io.EOF {
 		return nil, &ParseError{File: rd.name, Err: fmt.Errorf("%w: the file is empty", ErrNoDigs)}
@@ -77,6 +91,9 @@ func (c *csvSource) next() (Dig, error, bool) {
 		if err == io.EOF {
 			return Dig{}, io.EOF, false
 		}
+		if errors.Is(err, errRecordTooLong) {
+			return Dig{}, &ParseError{File: c.rd.name, Line: c.lastLine + 1, Err: fmt.Errorf("%w: the record that starts after line %d runs past %d MB, far more than any dig: a quote left open, or not a dig log", ErrEncoding, c.lastLine, MaxRecordBytes>>20)}, true
+		}
 		if err != nil {
 			var ce *csv.ParseError
 			// A broken quote leaves the rest of the file unreadable; a short
@@ -84,7 +101,18 @@ func (c *csvSource) next() (Dig, error, bool) {
 			fatal := !errors.As(err, &ce) || !errors.Is(ce.Err, csv.ErrFieldCount)
 			return Dig{}, csvSyntax(c.rd.name, err), fatal
 		}
+		c.capped.n = 0
 		line, _ := c.cr.FieldPos(0)
+		c.lastLine, _ = c.cr.FieldPos(len(rec) - 1)
+		for i, v := range rec {
+			if !utf8.ValidString(v) {
+				col := fmt.Sprintf("column %d", i+1)
+				if i < len(c.s.names) {
+					col = c.s.names[i]
+				}
+				return Dig{}, &ParseError{File: c.rd.name, Line: line, Column: col, Err: notUTF8(v)}, false
+			}
+		}
 		if blankRecord(rec) {
 			// ",,,,": a spreadsheet's empty row, skipped and counted.
 			c.rd.BlankRows++
@@ -96,7 +124,7 @@ func (c *csvSource) next() (Dig, error, bool) {
 		}
 		if c.decimalComma {
 			for i, v := range rec {
-				rec[i] = strings.ReplaceAll(v, ",", ".")
+				rec[i] = decimalComma(v)
 			}
 		}
 		d, err := c.row(line, rec)
@@ -229,4 +257,18 @@ func blankRecord(rec []string) bool {
 		}
 	}
 	return true
+}
+
+// decimalComma reads "0,5" as "0.5" in a semicolon- or tab-separated file;
+// a field that is not a number with one comma (a label "lead, cast") is
+// left as it is.
+func decimalComma(v string) string {
+	if strings.Count(v, ",") != 1 {
+		return v
+	}
+	d := strings.Replace(v, ",", ".", 1)
+	if _, err := strconv.ParseFloat(strings.TrimSpace(d), 64); err != nil {
+		return v
+	}
+	return d
 }

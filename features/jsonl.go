@@ -4,12 +4,14 @@ import (
 	"bufio"
 	"bytes"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"io"
 	"math"
 	"slices"
 	"strconv"
 	"strings"
+	"unicode/utf8"
 )
 
 // jsonlSource parses JSON Lines: one object per line, the CSV's names.
@@ -22,7 +24,7 @@ type jsonlSource struct {
 
 func newJSONLSource(r io.Reader, rd *Reader) *jsonlSource {
 	sc := bufio.NewScanner(r)
-	sc.Buffer(make([]byte, 64<<10), 16<<20)
+	sc.Buffer(make([]byte, 64<<10), MaxRecordBytes)
 	return &jsonlSource{rd: rd, sc: sc, ignored: map[string]bool{}}
 }
 
@@ -33,10 +35,17 @@ func (j *jsonlSource) next() (Dig, error, bool) {
 		if len(b) == 0 || b[0] == '#' {
 			continue
 		}
+		if !utf8.Valid(b) {
+			// encoding/json would quietly turn the bytes into U+FFFD.
+			return Dig{}, &ParseError{File: j.rd.name, Line: j.line, Err: notUTF8(string(b))}, false
+		}
 		d, err := j.row(b)
 		return d, err, false
 	}
 	if err := j.sc.Err(); err != nil {
+		if errors.Is(err, bufio.ErrTooLong) {
+			return Dig{}, &ParseError{File: j.rd.name, Line: j.line + 1, Err: fmt.Errorf("%w: the line is longer than %d MB, far more than any dig; is this a dig log?", ErrEncoding, MaxRecordBytes>>20)}, true
+		}
 		return Dig{}, &ParseError{File: j.rd.name, Line: j.line + 1, Err: fmt.Errorf("%w JSON Lines: %v", ErrSyntax, err)}, true
 	}
 	return Dig{}, io.EOF, false

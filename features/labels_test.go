@@ -2,6 +2,7 @@ package features
 
 import (
 	"errors"
+	"fmt"
 	"math"
 	"os"
 	"strings"
@@ -130,7 +131,8 @@ func TestSpreadsheetExports(t *testing.T) {
 		return log
 	}
 	want := read("reference.csv")
-	for _, name := range []string{"cr-only.csv", "utf16.csv", "semicolon.csv", "utf8-bom-crlf.csv"} {
+	for _, name := range []string{"cr-only.csv", "utf16.csv", "semicolon.csv", "utf8-bom-crlf.csv",
+		"tab-decimal-comma.csv", "utf16le-no-bom.csv", "utf16be-no-bom.csv"} {
 		got := read(name)
 		if len(got.Digs) != len(want.Digs) {
 			t.Fatalf("%s: %d digs, want %d", name, len(got.Digs), len(want.Digs))
@@ -146,5 +148,54 @@ func TestSpreadsheetExports(t *testing.T) {
 				}
 			}
 		}
+	}
+}
+
+func TestEncodingMessagesNameTheFix(t *testing.T) {
+	// Issue 13: each refusal of another encoding ends with what to do.
+	// (TestBadInputs checks the files' positions and causes.)
+	for _, file := range []string{"latin1.csv", "utf32.csv", "workbook.xlsx"} {
+		f, err := os.Open(logs + "bad/" + file)
+		if err != nil {
+			t.Fatal(err)
+		}
+		_, err = ReadLog(f, file, ReadOptions{})
+		f.Close()
+		if err == nil || !strings.HasSuffix(err.Error(), "save or export the file again as CSV (UTF-8)") {
+			t.Errorf("%s: %v names no fix", file, err)
+		}
+	}
+}
+
+func TestNotUTF8PastTheStartAndOverlongRecords(t *testing.T) {
+	head := "dig,material,shape,phase_5k,amp_5k\n"
+	row := "d%d,iron,nail,20,0.5\n"
+	var b strings.Builder
+	b.WriteString(head)
+	for i := range 5000 { // well past the 64 KB the encoding sniff sees
+		fmt.Fprintf(&b, row, i)
+	}
+	good := b.String()
+	// A Latin-1 byte on line 5003, in the material column.
+	_, err := ReadLog(strings.NewReader(good+"x1,fer \xe0 cheval,nail,20,0.5\n"), "late.csv", ReadOptions{})
+	if !errors.Is(err, ErrEncoding) || !strings.Contains(err.Error(), "late.csv:5002: material: ") {
+		t.Errorf("late Latin-1 byte: %v", err)
+	}
+	// The same in JSON Lines.
+	_, err = ReadLog(strings.NewReader("{\"dig\":\"a\",\"material\":\"fer \xe0\",\"readings\":[{\"hz\":5000,\"phase\":20,\"amp\":0.5}]}\n"), "l.jsonl", ReadOptions{})
+	if !errors.Is(err, ErrEncoding) || !strings.Contains(err.Error(), "l.jsonl:1: ") {
+		t.Errorf("JSON Lines Latin-1 byte: %v", err)
+	}
+	// A quote opened on line 5002 and never closed, in a file of 3 MB:
+	// refused once the record passes MaxRecordBytes, not read whole.
+	open := good + "x2,\"iron,nail,20,0.5\n" + strings.Repeat("a,b,c,d,e\n", 300000)
+	_, err = ReadLog(strings.NewReader(open), "open.csv", ReadOptions{})
+	if !errors.Is(err, ErrEncoding) || !strings.Contains(err.Error(), "open.csv:5002: ") || !strings.Contains(err.Error(), "a quote left open") {
+		t.Errorf("overlong record: %v", err)
+	}
+	// A label with a comma in a semicolon file keeps its comma.
+	log, err := ReadLog(strings.NewReader("dig;material;shape;phase_5k;amp_5k\na;lead, cast;ball;20,5;0,5\n"), "s.csv", ReadOptions{})
+	if err != nil || log.Digs[0].Material != "lead, cast" || log.Digs[0].Readings[0].Phase() != 20.5 {
+		t.Errorf("semicolon file: %v %+v", err, log)
 	}
 }

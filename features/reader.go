@@ -99,6 +99,20 @@ func (rd *Reader) date(v string, line int) string {
 // NewReader starts reading a dig log from r; name is used in errors.
 func NewReader(r io.Reader, name string, opts ReadOptions) (*Reader, error) {
 	br := bufio.NewReaderSize(r, 64<<10)
+	// What is not text spade reads is named, with the fix, before anything
+	// else is said about it; UTF-16 without its mark is decoded.
+	head, _ := br.Peek(64 << 10)
+	order, err := sniffEncoding(name, head)
+	if err != nil {
+		return nil, err
+	}
+	if order != 0 {
+		e := unicode.LittleEndian
+		if order == utf16BE {
+			e = unicode.BigEndian
+		}
+		br = bufio.NewReaderSize(transform.NewReader(br, unicode.UTF16(e, unicode.IgnoreBOM).NewDecoder()), 64<<10)
+	}
 	// UTF-16 with a byte-order mark (as some spreadsheets save "Unicode
 	// text") is decoded to UTF-8.
 	if b, err := br.Peek(2); err == nil && (bytes.Equal(b, []byte{0xFF, 0xFE}) || bytes.Equal(b, []byte{0xFE, 0xFF})) {
@@ -206,6 +220,11 @@ func (r *Reader) check(d *Dig) error {
 	key := h.Sum64()
 	if line, dup := r.seen[key]; dup {
 		return &ParseError{File: r.name, Line: d.Line, Column: "dig", Err: cause(ErrDuplicateDig, "%q was used on line %d", d.ID, line)}
+	}
+	for _, f := range []struct{ name, v string }{{"dig", d.ID}, {"site", d.Site}, {"date", d.Date}, {"material", d.Material}, {"shape", d.Shape}} {
+		if strings.IndexByte(f.v, 0) >= 0 {
+			return &ParseError{File: r.name, Line: d.Line, Column: f.name, Err: fmt.Errorf("%w: a NUL character in the text: binary data, not a log; %s", ErrEncoding, fixUTF8)}
+		}
 	}
 	if r.opts.Require != "" && !d.Labelled(r.opts.Require) {
 		return &ParseError{File: r.name, Line: d.Line, Column: labelColumn(d, r.opts.Require),

@@ -99,6 +99,10 @@ func TestBadInputs(t *testing.T) {
 		{"bad-json.jsonl", ReadOptions{}, ErrSyntax, "bad-json.jsonl:2: malformed JSON"},
 		{"amp-zero.jsonl", ReadOptions{}, ErrNotPositive, "amp-zero.jsonl:1: readings[0].amp: must be > 0, got 0"},
 		{"no-readings.jsonl", ReadOptions{}, ErrMissingColumn, "no-readings.jsonl:1: readings: missing column"},
+		{"latin1.csv", ReadOptions{}, ErrEncoding, "latin1.csv:3: not a text log spade reads: byte 0xE9 at offset"},
+		{"utf32.csv", ReadOptions{}, ErrEncoding, "utf32.csv: not a text log spade reads: the file is UTF-32 text"},
+		{"workbook.xlsx", ReadOptions{}, ErrEncoding, "workbook.xlsx: not a text log spade reads: the file is a zipped spreadsheet workbook"},
+		{"pipe.csv", ReadOptions{}, ErrEncoding, `pipe.csv:1: not a text log spade reads: the header is separated by "|"`},
 	}
 	files, _ := filepath.Glob(logs + "bad/*")
 	if len(files) != len(cases) {
