@@ -132,7 +132,7 @@ func (f *freqColumns) slot(k columnKind) *int {
 }
 
 // parseHeader checks a header row; errors name the column.
-func parseHeader(file string, line int, cells []string) (*schema, error) {
+func parseHeader(file string, line int, cells []string, displayIDOnly bool) (*schema, error) {
 	s := &schema{index: map[columnKind]int{}, perFreq: map[int]*freqColumns{}}
 	herr := func(col string, format string, args ...any) error {
 		return &ParseError{File: file, Line: line, Column: col, Err: cause(ErrHeader, format, args...)}
@@ -195,9 +195,12 @@ func parseHeader(file string, line int, cells []string) (*schema, error) {
 		s.freqs = append(s.freqs, hz)
 	}
 	slices.Sort(s.freqs)
-	if len(s.freqs) == 0 {
-		return nil, &ParseError{File: file, Line: line, Column: "phase_<hz>",
-			Err: cause(ErrMissingColumn, "no reading columns (phase_<hz> and amp_<hz>, or x_<hz> and r_<hz>)")}
+	if _, hasID := s.index[colDisplayID]; len(s.freqs) == 0 && !(hasID && displayIDOnly) {
+		msg := "no reading columns (phase_<hz> and amp_<hz>, or x_<hz> and r_<hz>)"
+		if hasID {
+			msg += "; a log of display IDs only is read by spade overlap and spade evaluate, which need no phase"
+		}
+		return nil, &ParseError{File: file, Line: line, Column: "phase_<hz>", Err: cause(ErrMissingColumn, "%s", msg)}
 	}
 	if s.ground {
 		for _, hz := range s.freqs {

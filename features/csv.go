@@ -62,7 +62,7 @@ func newCSVSource(r io.Reader, rd *Reader) (*csvSource, error) {
 		return nil, csvSyntax(rd.name, err)
 	}
 	src.header, _ = cr.FieldPos(0)
-	s, err := parseHeader(rd.name, src.header, rec)
+	s, err := parseHeader(rd.name, src.header, rec, rd.opts.DisplayIDOnly)
 	if err != nil {
 		return nil, err
 	}

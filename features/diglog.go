@@ -86,10 +86,14 @@ type Log struct {
 	// HasDisplayID is true when the log has a display_id column and every
 	// dig that was kept has a value in it.
 	HasDisplayID bool
-	HasGround    bool     // at least one dig carries a ground reading
-	Ignored      []string // columns kept out of the model
-	Bad          []*ParseError
-	Unlabelled   int      // rows skipped under ReadOptions.SkipUnlabelled
-	Notes        []string // remarks for the user (Reader.Notes)
-	BlankRows    int      // empty rows skipped
+	// DisplayIDOnly is true for a log read with ReadOptions.DisplayIDOnly
+	// that has no reading columns: Freqs is empty and so is every dig's
+	// Readings.
+	DisplayIDOnly bool
+	HasGround     bool     // at least one dig carries a ground reading
+	Ignored       []string // columns kept out of the model
+	Bad           []*ParseError
+	Unlabelled    int      // rows skipped under ReadOptions.SkipUnlabelled
+	Notes         []string // remarks for the user (Reader.Notes)
+	BlankRows     int      // empty rows skipped
 }

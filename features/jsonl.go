@@ -128,6 +128,11 @@ func (j *jsonlSource) row(b []byte) (Dig, error) {
 			return d, perr(name, err)
 		}
 	}
+	if (!haveReadings || len(readings) == 0) && j.rd.opts.DisplayIDOnly && !math.IsNaN(d.DisplayID) && len(j.rd.freqs) == 0 {
+		// A log of display IDs only: its first row sets an empty set.
+		j.rd.freqs = []int{}
+		return d, nil
+	}
 	if !haveReadings || len(readings) == 0 {
 		return d, perr("readings", cause(ErrMissingColumn, "a row needs a readings array"))
 	}

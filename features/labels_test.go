@@ -199,3 +199,44 @@ func TestNotUTF8PastTheStartAndOverlongRecords(t *testing.T) {
 		t.Errorf("semicolon file: %v %+v", err, log)
 	}
 }
+
+func TestDisplayIDOnlyLog(t *testing.T) {
+	// Issue 13: a log of display IDs and labels only (what most instruments
+	// log) is read when asked for, and otherwise refused with where to go.
+	open := func() *os.File {
+		f, err := os.Open(logs + "display-id-only.csv")
+		if err != nil {
+			t.Fatal(err)
+		}
+		t.Cleanup(func() { f.Close() })
+		return f
+	}
+	log, err := ReadLog(open(), "ids.csv", ReadOptions{DisplayIDOnly: true, Require: LabelBoth})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !log.DisplayIDOnly || len(log.Freqs) != 0 || len(log.Digs) != 300 || !log.HasDisplayID || len(log.Digs[0].Readings) != 0 {
+		t.Errorf("log: only %v, freqs %v, %d digs, display %v", log.DisplayIDOnly, log.Freqs, len(log.Digs), log.HasDisplayID)
+	}
+	_, err = ReadLog(open(), "ids.csv", ReadOptions{})
+	if !errors.Is(err, ErrMissingColumn) || !strings.Contains(err.Error(), "a log of display IDs only is read by spade overlap and spade evaluate") {
+		t.Errorf("without the option: %v", err)
+	}
+	_, err = ReadLog(strings.NewReader("dig,material,shape,display_id\na,iron,nail,12\nb,gold,ring,\n"), "gap.csv", ReadOptions{DisplayIDOnly: true})
+	if !errors.Is(err, ErrMissingValue) || !strings.Contains(err.Error(), "gap.csv:3: display_id: ") {
+		t.Errorf("a row without its display ID: %v", err)
+	}
+	j, err := ReadLog(strings.NewReader(`{"dig":"a","material":"iron","shape":"nail","display_id":12}`+"\n"+`{"dig":"b","material":"gold","shape":"ring","display_id":66}`+"\n"), "ids.jsonl", ReadOptions{DisplayIDOnly: true})
+	if err != nil || !j.DisplayIDOnly || len(j.Digs) != 2 || j.Digs[1].DisplayID != 66 {
+		t.Errorf("JSON Lines: %v %+v", err, j)
+	}
+	// A log with readings is read as before under the option.
+	f, err := os.Open(logs + "exports/reference.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	if l, err := ReadLog(f, "ref.csv", ReadOptions{DisplayIDOnly: true}); err != nil || l.DisplayIDOnly || len(l.Freqs) != 2 {
+		t.Errorf("a log with readings: %v %+v", err, l)
+	}
+}

@@ -34,6 +34,12 @@ type ReadOptions struct {
 	// DateOrder is DayFirst (the default) or MonthFirst, for numeric dates
 	// whose day and month could be either way round.
 	DateOrder string
+	// DisplayIDOnly accepts a log with a display_id column and no reading
+	// columns, what most instruments' logs hold: its digs have no
+	// readings (Log.DisplayIDOnly), and every row needs a display ID. Only
+	// what needs no phase reads such a log: the ambiguous ranges, and the
+	// single-number baseline.
+	DisplayIDOnly bool
 }
 
 // rowSource is one file format's row parser.
@@ -226,6 +232,9 @@ func (r *Reader) check(d *Dig) error {
 			return &ParseError{File: r.name, Line: d.Line, Column: f.name, Err: fmt.Errorf("%w: a NUL character in the text: binary data, not a log; %s", ErrEncoding, fixUTF8)}
 		}
 	}
+	if len(d.Readings) == 0 && math.IsNaN(d.DisplayID) {
+		return &ParseError{File: r.name, Line: d.Line, Column: "display_id", Err: fmt.Errorf("%w: display_id is empty, and a log of display IDs only needs one on every row", ErrMissingValue)}
+	}
 	if r.opts.Require != "" && !d.Labelled(r.opts.Require) {
 		return &ParseError{File: r.name, Line: d.Line, Column: labelColumn(d, r.opts.Require),
 			Err: fmt.Errorf("%w: training needs the %s of every dig (or --skip-unlabelled)", ErrUnlabelled, labelWords(r.opts.Require))}
@@ -279,6 +288,7 @@ func ReadLog(r io.Reader, name string, opts ReadOptions) (*Log, error) {
 	log.Freqs, log.Ignored, log.Bad, log.Unlabelled, log.Notes = rd.freqs, rd.ignored, rd.Bad, rd.Unlabelled, rd.Notes
 	log.BlankRows = rd.BlankRows
 	log.HasDisplayID = rd.HasDisplayID()
+	log.DisplayIDOnly = len(rd.freqs) == 0
 	for i := range log.Digs {
 		if log.Digs[i].Ground != nil {
 			log.HasGround = true

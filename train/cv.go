@@ -50,14 +50,23 @@ type EvalOptions struct {
 	// Raw leaves the forest's probabilities unshrunk, for comparison with
 	// other forests (scikit-learn's are raw).
 	Raw bool
+	// BaselineOnly measures the single-number baseline alone, for a log of
+	// display IDs only: no forest is grown.
+	BaselineOnly bool
 	// Progress, when set, is called with trees grown so far and in all.
 	Progress func(done, total int)
 }
 
+// DisplayIDOnlyNote is what an evaluation of a log of display IDs only
+// says about what it lacks.
+const DisplayIDOnlyNote = "this log has display IDs only, so these are the figures of the one number alone; log phase and amplitude at two or more frequencies (README: getting readings out of an instrument) and spade adds its model, its probabilities per class and the ordnance screen"
+
 // Evaluation is the cross-validated report. Its JSON is the evaluate
 // command's contract.
 type Evaluation struct {
-	Model        Metrics    `json:"model"`
+	// Model is the forest's figures; zero, and left out of the JSON, when
+	// only the baseline was measured (BaselineOnly).
+	Model        Metrics    `json:"model,omitzero"`
 	Baseline     Metrics    `json:"baseline"`
 	BaselineAxis string     `json:"baseline_axis"`
 	DigSaving    *DigSaving `json:"dig_saving,omitempty"`
@@ -80,6 +89,9 @@ type Evaluation struct {
 	// Screen is the ordnance screen's evaluation (EvaluateScreen), set by
 	// the caller; nil when it was not made.
 	Screen *ScreenEvaluation `json:"ordnance_screen"`
+	// BaselineOnly is set when the log has display IDs only: the forest is
+	// not grown, and the figures are the single number's alone.
+	BaselineOnly bool `json:"baseline_only,omitempty"`
 	// The pooled held-out probabilities, per row, for further analysis.
 	Probs         [][]float64 `json:"-"`
 	BaselineProbs [][]float64 `json:"-"`
@@ -139,6 +151,11 @@ func CrossValidate(ctx context.Context, ds *Dataset, o EvalOptions) (*Evaluation
 	ev := &Evaluation{Folds: o.Folds, Seed: o.Seed, Digs: n, Classes: ds.Classes, BaselineAxis: ds.Names[axis],
 		Probs: make([][]float64, n), BaselineProbs: make([][]float64, n), Warnings: warnings}
 	fractions := []float64{1}
+	if o.BaselineOnly {
+		fractions, o.LearningCurve, ev.BaselineOnly = nil, false, true
+		ev.Probs = nil
+		ev.Warnings = append(ev.Warnings, DisplayIDOnlyNote)
+	}
 	if o.LearningCurve {
 		fractions = []float64{0.25, 0.5, 0.75, 1}
 	}
@@ -200,15 +217,22 @@ func CrossValidate(ctx context.Context, ds *Dataset, o EvalOptions) (*Evaluation
 				curve[j][i] = probs[q]
 			}
 		}
+		if trainDS == nil { // BaselineOnly: no forest was grown
+			trainDS = ds.Subset(trainIdx)
+		}
 		bl := FitBaseline(ds.Names[axis], trainDS.Cols[axis], trainDS.Y, K)
 		for j, i := range testIdx {
-			ev.Probs[i] = probs[j]
+			if ev.Probs != nil {
+				ev.Probs[i] = probs[j]
+			}
 			ev.BaselineProbs[i] = slices.Clone(bl.Predict(ds.Cols[axis][i]))
 		}
 	}
-	ev.Model = Score(ds.Classes, ds.Y, ev.Probs)
 	ev.Baseline = Score(ds.Classes, ds.Y, ev.BaselineProbs)
-	ev.OneNumberVerdict = ev.Verdict()
+	if !ev.BaselineOnly {
+		ev.Model = Score(ds.Classes, ds.Y, ev.Probs)
+		ev.OneNumberVerdict = ev.Verdict()
+	}
 	if o.LearningCurve {
 		for j, frac := range fractions {
 			m := Score(ds.Classes, ds.Y, curve[j])
@@ -250,10 +274,14 @@ func digSaving(ds *Dataset, keepers, hazards []string, model, base [][]float64) 
 		} else if trashRow[i] {
 			d.TrashDigs++
 		}
-		ms[i] = KeeperScore(model[i], isKeeper)
+		if model != nil {
+			ms[i] = KeeperScore(model[i], isKeeper)
+		}
 		bs[i] = KeeperScore(base[i], isKeeper)
 	}
-	d.Model = SavingCurve(ms, keeperRow, trashRow, SavingLevels)
+	if model != nil {
+		d.Model = SavingCurve(ms, keeperRow, trashRow, SavingLevels)
+	}
 	d.Baseline = SavingCurve(bs, keeperRow, trashRow, SavingLevels)
 	return d
 }
@@ -263,6 +291,9 @@ func digSaving(ds *Dataset, keepers, hazards []string, model, base [][]float64) 
 // that rewards honest probabilities): then spade's extra columns are not
 // earning their keep here, and the user should know. Empty otherwise.
 func (e *Evaluation) Verdict() string {
+	if e.BaselineOnly {
+		return ""
+	}
 	if e.Model.LogLoss < e.Baseline.LogLoss && e.Model.Accuracy >= e.Baseline.Accuracy {
 		return ""
 	}

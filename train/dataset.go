@@ -88,6 +88,31 @@ func FromLog(log *features.Log, spec *features.FeatureSpec, kind features.Label)
 	return ds, nil
 }
 
+// FromDisplayIDs is the one-column table of a log of display IDs only
+// (features.ReadOptions.DisplayIDOnly): what the single-number baseline and
+// the ambiguous ranges need, and no more.
+func FromDisplayIDs(log *features.Log, kind features.Label) (*Dataset, error) {
+	rows := make([][]float64, len(log.Digs))
+	labels := make([]string, len(log.Digs))
+	for i := range log.Digs {
+		d := &log.Digs[i]
+		if !d.Labelled(kind) {
+			return nil, &features.ParseError{File: log.Name, Line: d.Line, Err: fmt.Errorf("%w: dig %s", features.ErrUnlabelled, d.ID)}
+		}
+		if math.IsNaN(d.DisplayID) || math.IsInf(d.DisplayID, 0) {
+			return nil, &features.ParseError{File: log.Name, Line: d.Line, Column: features.NameDisplayID, Err: fmt.Errorf("%w: display_id is %v", features.ErrNotFinite, d.DisplayID)}
+		}
+		rows[i] = []float64{d.DisplayID}
+		labels[i] = d.Class(kind)
+	}
+	ds := NewDataset([]string{features.NameDisplayID}, rows, labels)
+	for i := range log.Digs {
+		ds.IDs = append(ds.IDs, log.Digs[i].ID)
+		ds.Dates = append(ds.Dates, log.Digs[i].Date)
+	}
+	return ds, nil
+}
+
 // Subset is the table restricted to rows idx, in that order.
 func (d *Dataset) Subset(idx []int) *Dataset {
 	s := &Dataset{Names: d.Names, Classes: d.Classes, Cols: make([][]float64, len(d.Cols)), Y: make([]int32, len(idx))}

@@ -28,7 +28,7 @@ type DigSaving struct {
 	Hazards    []string      `json:"hazards"`
 	KeeperDigs int           `json:"keeper_digs"`
 	TrashDigs  int           `json:"trash_digs"`
-	Model      []SavingPoint `json:"model"`
+	Model      []SavingPoint `json:"model,omitempty"` // nil when only the baseline was measured
 	Baseline   []SavingPoint `json:"baseline"`
 }
 

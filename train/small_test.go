@@ -2,8 +2,13 @@ package train
 
 import (
 	"context"
+	"math"
+	"slices"
 	"strings"
 	"testing"
+
+	"github.com/spade-detect/spade/datasets"
+	"github.com/spade-detect/spade/features"
 )
 
 func TestCrossValidateLowersFoldsAndSaysSo(t *testing.T) {
@@ -103,5 +108,49 @@ func TestLearningCurve(t *testing.T) {
 		if p.LogLoss >= r.LogLoss {
 			t.Errorf("%d digs: shrinkage does not lower the log-loss (%.3f vs %.3f raw)", p.Digs, p.LogLoss, r.LogLoss)
 		}
+	}
+}
+
+func TestBaselineOnlyIsTheFullLogsBaseline(t *testing.T) {
+	// A log of display IDs only is evaluated by the one number alone. Its
+	// figures must be the very ones the same digs' full log gives for its
+	// baseline: the folds depend on the classes and the seed only, and the
+	// baseline reads only the display ID (tolerance 1e-12, rounding only).
+	digs, _, err := datasets.Simulate(datasets.Options{N: 400, Seed: 11})
+	if err != nil {
+		t.Fatal(err)
+	}
+	full := &features.Log{Name: "sim", Freqs: datasets.DefaultFreqs, Digs: digs, HasDisplayID: true}
+	ds, err := FromLog(full, features.NewSpec(full.Freqs, true), features.LabelBoth)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ids := &features.Log{Name: "ids", Digs: make([]features.Dig, len(digs)), HasDisplayID: true, DisplayIDOnly: true}
+	for i, d := range digs {
+		d.Readings, d.Ground = nil, nil
+		ids.Digs[i] = d
+	}
+	idDS, err := FromDisplayIDs(ids, features.LabelBoth)
+	if err != nil {
+		t.Fatal(err)
+	}
+	keep := []string{"gold/ring", "silver/coin"}
+	a, err := CrossValidate(context.Background(), ds, EvalOptions{Folds: 5, Seed: 3, Forest: Options{Trees: 10}, Keepers: keep})
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, err := CrossValidate(context.Background(), idDS, EvalOptions{Folds: 5, Seed: 3, BaselineOnly: true, LearningCurve: true, Keepers: keep})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !b.BaselineOnly || b.Probs != nil || b.Learning != nil || b.Model.Accuracy != 0 || b.DigSaving.Model != nil {
+		t.Errorf("baseline-only evaluation carries model figures: %+v", b)
+	}
+	if math.Abs(a.Baseline.LogLoss-b.Baseline.LogLoss) > 1e-12 || math.Abs(a.Baseline.Accuracy-b.Baseline.Accuracy) > 1e-12 ||
+		a.DigSaving.Baseline[1].TrashSkipped != b.DigSaving.Baseline[1].TrashSkipped {
+		t.Errorf("baseline %+v against the full log's %+v", b.Baseline, a.Baseline)
+	}
+	if !slices.Contains(b.Warnings, DisplayIDOnlyNote) {
+		t.Errorf("warnings %q lack the display-ID-only note", b.Warnings)
 	}
 }

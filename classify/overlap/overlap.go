@@ -87,6 +87,9 @@ type Result struct {
 	Digs        int     `json:"digs"`
 	Bins        []Bin   `json:"bins"`
 	Ranges      []Range `json:"ranges"`
+	// Notes are what the reader must know about these ranges; the caller
+	// sets them (a log of display IDs only, for one).
+	Notes []string `json:"notes,omitempty"`
 }
 
 // Analyse bins the axis values of digs with true classes y (indices into

@@ -81,13 +81,20 @@ func runEvaluate(ctx context.Context, g *globalOptions, opts evaluateOptions, ar
 	if err != nil {
 		return err
 	}
+	opts.in.displayIDOnly = true
 	log, kind, err := opts.in.read(g, args[0])
 	if err != nil {
 		return err
 	}
-	spec := features.NewSpec(log.Freqs, log.HasDisplayID)
-	g.specNotes(spec)
-	ds, err := train.FromLog(log, spec, kind)
+	var spec *features.FeatureSpec
+	var ds *train.Dataset
+	if log.DisplayIDOnly {
+		ds, err = train.FromDisplayIDs(log, kind)
+	} else {
+		spec = features.NewSpec(log.Freqs, log.HasDisplayID)
+		g.specNotes(spec)
+		ds, err = train.FromLog(log, spec, kind)
+	}
 	if err != nil {
 		return err
 	}
@@ -99,15 +106,17 @@ func runEvaluate(ctx context.Context, g *globalOptions, opts evaluateOptions, ar
 		return err
 	}
 	ev, err := evaluateDataset(ctx, g, ds, opts.folds, opts.trees, opts.seed, vals, opts.format.json(), func(eo *train.EvalOptions) {
-		eo.Groups, eo.LearningCurve = groups, !opts.noCurve
+		eo.Groups, eo.LearningCurve, eo.BaselineOnly = groups, !opts.noCurve, log.DisplayIDOnly
 	})
 	if err != nil {
 		return err
 	}
 	ev.GroupedBy = opts.group
 	ev.Warnings = append(ev.Warnings, features.LabelNotes(log.Digs)...)
-	if ev.Screen, err = evaluateScreen(ctx, g, log, spec, opts.seed, vals, opts.format.json()); err != nil {
-		return err
+	if spec != nil {
+		if ev.Screen, err = evaluateScreen(ctx, g, log, spec, opts.seed, vals, opts.format.json()); err != nil {
+			return err
+		}
 	}
 	return g.writeOutput(opts.output, func(w io.Writer) error {
 		if opts.format.json() {
@@ -116,7 +125,7 @@ func runEvaluate(ctx context.Context, g *globalOptions, opts evaluateOptions, ar
 			return enc.Encode(ev)
 		}
 		writeEvaluation(w, ev, string(kind))
-		if ev.Screen == nil {
+		if ev.Screen == nil && !ev.BaselineOnly {
 			writeScreenEvaluation(w, nil)
 		}
 		return nil
@@ -200,6 +209,9 @@ func evaluateDataset(ctx context.Context, g *globalOptions, ds *train.Dataset, f
 	rounds := 1
 	if eo.LearningCurve {
 		rounds = 4
+	}
+	if eo.BaselineOnly {
+		rounds = 0
 	}
 	bar := g.progress(folds*trees*rounds, "cross-validating", quiet)
 	// Called from every tree-growing goroutine at once.

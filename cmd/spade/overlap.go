@@ -95,12 +95,22 @@ func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args
 	if err != nil {
 		return err
 	}
+	opts.in.displayIDOnly = true
 	log, kind, err := opts.in.read(g, args[0])
 	if err != nil {
 		return err
 	}
-	spec := features.NewSpec(log.Freqs, log.HasDisplayID)
-	ds, err := train.FromLog(log, spec, kind)
+	var spec *features.FeatureSpec
+	var ds *train.Dataset
+	if log.DisplayIDOnly {
+		if opts.model != "" {
+			return usagef("--model: this log has display IDs only, and a model needs phase and amplitude readings; leave out --model")
+		}
+		ds, err = train.FromDisplayIDs(log, kind)
+	} else {
+		spec = features.NewSpec(log.Freqs, log.HasDisplayID)
+		ds, err = train.FromLog(log, spec, kind)
+	}
 	if err != nil {
 		return err
 	}
@@ -108,11 +118,14 @@ func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args
 		return err
 	}
 	var probs [][]float64
-	if opts.model != "" {
+	switch {
+	case log.DisplayIDOnly:
+		// No readings, no model: the ranges are the digs' own.
+	case opts.model != "":
 		if probs, err = modelProbs(opts.model, kind, log, ds); err != nil {
 			return err
 		}
-	} else {
+	default:
 		g.specNotes(spec)
 		ev, err := evaluateDataset(ctx, g, ds, 5, opts.trees, opts.seed, nil, opts.format.json())
 		if err != nil {
@@ -123,6 +136,9 @@ func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args
 	res, unit, err := analyseOverlap(log, ds, probs, vals, opts.by, overlap.Options{Width: opts.bin, MinTopShare: opts.minTop, MaxEntropy: opts.maxEntropy})
 	if err != nil {
 		return err
+	}
+	if log.DisplayIDOnly {
+		res.Notes = append(res.Notes, "This log has display IDs only: the ranges come from your digs alone. Log phase and amplitude at two or more frequencies and overlap also shows what spade resolves in each range.")
 	}
 	if opts.plot != "" {
 		if err := writePlot(opts.plot, func(w io.Writer, format string) error {
@@ -246,6 +262,9 @@ func analyseOverlap(log *features.Log, ds *train.Dataset, probs [][]float64, val
 func writeOverlapTable(w io.Writer, r *overlap.Result, noValues bool) {
 	fmt.Fprintf(w, "Ambiguous %s ranges in your %d digs (bins of %g; ambiguous when the top\n", r.By, r.Digs, r.Width)
 	fmt.Fprintf(w, "class has under %.0f%% or the entropy is over %g bit)\n", 100*r.MinTopShare, r.MaxEntropy)
+	for _, n := range r.Notes {
+		fmt.Fprint(w, wrap("note: "+n, 78, ""))
+	}
 	if len(r.Ranges) == 0 {
 		fmt.Fprintln(w, "\nNo ambiguous ranges: every bin has a clear top class.")
 	}
@@ -286,6 +305,10 @@ func writeOverlapTable(w io.Writer, r *overlap.Result, noValues bool) {
 func num(v float64) string { return strconv.FormatFloat(math.Round(v*100)/100, 'f', -1, 64) }
 
 func writeOverlapCSV(w io.Writer, r *overlap.Result) error {
+	for _, n := range r.Notes {
+		// A comment line, as spade's own readers skip them.
+		fmt.Fprintf(w, "# note: %s\n", n)
+	}
 	cw := csv.NewWriter(w)
 	cw.Write([]string{"from", "to", "digs", "entropy_bits", "ambiguous", "top_class", "top_share", "second_class", "second_share"})
 	for _, b := range r.Bins {

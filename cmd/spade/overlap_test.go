@@ -2,7 +2,10 @@ package main
 
 import (
 	"encoding/json"
+	"fmt"
+	"os"
 	"path/filepath"
+	"reflect"
 	"strings"
 	"testing"
 
@@ -57,5 +60,60 @@ func TestOverlapUsage(t *testing.T) {
 		if _, stderr, code := spade(t, "", args...); code != exitUsage {
 			t.Errorf("%v: exit %d, %s", args[3:], code, stderr)
 		}
+	}
+}
+
+func TestDisplayIDOnlyLogInOverlapAndEvaluate(t *testing.T) {
+	// Issue 13: a log of display IDs only works with overlap (the same bins
+	// as the full log it was cut from: they need no phase) and evaluate
+	// (the one number's figures alone, saying what more columns add);
+	// train refuses it, naming the commands that read it.
+	ids := "../../testdata/logs/display-id-only.csv"
+	full, _, code := spade(t, "", "simulate", "--n", "300", "--seed", "7")
+	if code != 0 {
+		t.Fatal("simulate")
+	}
+	fullPath := filepath.Join(t.TempDir(), "full.csv")
+	if err := os.WriteFile(fullPath, []byte(full), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	var a, b overlap.Result
+	out, stderr, code := spade(t, "", "overlap", ids, "--format", "json")
+	if code != 0 || json.Unmarshal([]byte(out), &b) != nil {
+		t.Fatalf("overlap of display IDs: exit %d: %s", code, stderr)
+	}
+	out, _, code = spade(t, "", "overlap", fullPath, "--format", "json", "--trees", "10")
+	if code != 0 || json.Unmarshal([]byte(out), &a) != nil {
+		t.Fatalf("overlap of the full log: exit %d", code)
+	}
+	if !reflect.DeepEqual(a.Bins, b.Bins) || len(a.Ranges) != len(b.Ranges) || len(b.Notes) != 1 || len(a.Notes) != 0 {
+		t.Errorf("bins differ, or notes %q / %q", b.Notes, a.Notes)
+	}
+	for _, r := range b.Ranges {
+		if r.Resolution != nil {
+			t.Errorf("range %v resolved without a model", r)
+		}
+	}
+	table, _, _ := spade(t, "", "overlap", ids)
+	if !strings.Contains(table, "note: This log has display IDs only") {
+		t.Errorf("table lacks the note:\n%s", table)
+	}
+	if _, stderr, code := spade(t, "", "overlap", ids, "--model", "m.spade"); code != exitUsage || !strings.Contains(stderr, "a model needs phase and amplitude") {
+		t.Errorf("--model with display IDs: exit %d: %s", code, stderr)
+	}
+	out, stderr, code = spade(t, "", "evaluate", ids, "--format", "json")
+	var ev map[string]any
+	if code != 0 || json.Unmarshal([]byte(out), &ev) != nil {
+		t.Fatalf("evaluate: exit %d: %s", code, stderr)
+	}
+	if _, has := ev["model"]; has || ev["baseline_only"] != true || !strings.Contains(fmt.Sprint(ev["warnings"]), "display IDs only") {
+		t.Errorf("evaluate JSON: model %v, baseline_only %v, warnings %v", ev["model"], ev["baseline_only"], ev["warnings"])
+	}
+	table, _, _ = spade(t, "", "evaluate", ids)
+	if !strings.Contains(table, "HAZARD CHECK UNAVAILABLE") || !strings.Contains(table, "one number") || strings.Contains(table, "Per class (spade)") {
+		t.Errorf("evaluate table:\n%s", table)
+	}
+	if _, stderr, code := spade(t, "", "train", ids, "-o", filepath.Join(t.TempDir(), "m.spade")); code != exitError || !strings.Contains(stderr, "spade overlap and spade evaluate") {
+		t.Errorf("train of display IDs: exit %d: %s", code, stderr)
 	}
 }

@@ -77,6 +77,9 @@ type labelledLogFlags struct {
 	log            logOptions
 	label          labelFlag
 	skipUnlabelled bool
+	// displayIDOnly is set by the commands that can read a log of display
+	// IDs only (evaluate, overlap); it is not a flag.
+	displayIDOnly bool
 }
 
 func (o *labelledLogFlags) AddFlags(fs *pflag.FlagSet) {
@@ -92,7 +95,7 @@ func (o *labelledLogFlags) read(g *globalOptions, name string) (*features.Log, f
 		return nil, "", err
 	}
 	ro := o.log.readOptions()
-	ro.Require, ro.SkipUnlabelled = kind, o.skipUnlabelled
+	ro.Require, ro.SkipUnlabelled, ro.DisplayIDOnly = kind, o.skipUnlabelled, o.displayIDOnly
 	log, err := g.readLog(name, ro)
 	return log, kind, err
 }

@@ -44,6 +44,10 @@ func writeEvaluation(w io.Writer, ev *train.Evaluation, label string) {
 	if len(ev.Warnings) > 0 {
 		fmt.Fprintln(w)
 	}
+	if ev.BaselineOnly {
+		writeBaselineEvaluation(w, ev)
+		return
+	}
 	m, b := ev.Model, ev.Baseline
 	fmt.Fprintf(w, "%-26s %10s %18s\n", "", "spade", "one number")
 	fmt.Fprintf(w, "%-26s %10s %18s\n", "", "", "("+ev.BaselineAxis+")")
@@ -89,7 +93,7 @@ func writeEvaluation(w io.Writer, ev *train.Evaluation, label string) {
 		pc := m.PerClass[c]
 		fmt.Fprintf(w, "  %-32s %5d %9.2f %7.2f %6.2f\n", trunc(c, 32), pc.Support, pc.Precision, pc.Recall, pc.F1)
 	}
-	writeConfusions(w, ev.Classes, m.Confusion)
+	writeConfusions(w, "spade", ev.Classes, m.Confusion)
 	fmt.Fprintf(w, "\nReliability (spade): when the top class has probability p, how often it is right\n")
 	fmt.Fprintf(w, "  %-10s %6s %8s %8s\n", "p", "digs", "mean p", "right")
 	for _, r := range m.Reliability {
@@ -98,6 +102,37 @@ func writeEvaluation(w io.Writer, ev *train.Evaluation, label string) {
 		}
 		fmt.Fprintf(w, "  %.1f-%.1f    %6d %8.2f %8.2f\n", r.Lo, r.Hi, r.Count, r.Confidence, r.Accuracy)
 	}
+}
+
+// writeBaselineEvaluation is the report of a log of display IDs only: the
+// one number's own figures, per class and in dig saving, and what phase and
+// amplitude would add (the note among the warnings above it).
+func writeBaselineEvaluation(w io.Writer, ev *train.Evaluation) {
+	b := ev.Baseline
+	fmt.Fprintf(w, "%-26s %18s\n", "", "one number")
+	fmt.Fprintf(w, "%-26s %18s\n", "", "("+ev.BaselineAxis+")")
+	row := func(name string, y float64, better string) { fmt.Fprintf(w, "%-26s %18.3f   %s\n", name, y, better) }
+	row("accuracy", b.Accuracy, "higher is better")
+	row("balanced accuracy", b.BalancedAccuracy, "")
+	row("log-loss", b.LogLoss, "lower is better")
+	row("Brier score", b.Brier, "")
+	row("calibration error (ECE)", b.ECE, "")
+	if d := ev.DigSaving; d != nil {
+		fmt.Fprintf(w, "\nDig saving by the one number: trash digs you could have skipped\n")
+		fmt.Fprintf(w, "(%d keeper and %d trash digs)\n", d.KeeperDigs, d.TrashDigs)
+		fmt.Fprint(w, wrap("keepers: "+strings.Join(d.Keepers, ", "), 78, "  "))
+		for _, p := range d.Baseline {
+			fmt.Fprintf(w, "  keeping %3.0f%% of keepers: %s skip, lost %d of %d\n", 100*p.Keep, pct(p.TrashSkipped), p.KeepersLost, p.Keepers)
+		}
+	}
+	fmt.Fprintf(w, "\nPer class (one number)%14s %9s %7s %6s\n", "digs", "precision", "recall", "F1")
+	for _, c := range ev.Classes {
+		pc := b.PerClass[c]
+		fmt.Fprintf(w, "  %-32s %5d %9.2f %7.2f %6.2f\n", trunc(c, 32), pc.Support, pc.Precision, pc.Recall, pc.F1)
+	}
+	writeConfusions(w, "the one number", ev.Classes, b.Confusion)
+	fmt.Fprintf(w, "\nOrdnance screen\n")
+	fmt.Fprint(w, wrap("HAZARD CHECK UNAVAILABLE: a log of display IDs only carries no ordnance screen, and the one number cannot warn of munitions your history lacks.", 78, "  "))
 }
 
 // writeScreenEvaluation reports the ordnance screen: on spade's simulated
@@ -178,7 +213,7 @@ func wrapHanging(lead, text string, width int, indent string) string {
 
 // writeConfusions lists the commonest mistakes, which read better in 80
 // columns than a 13-by-13 matrix (the JSON has the whole matrix).
-func writeConfusions(w io.Writer, classes []string, cm map[string]map[string]int) {
+func writeConfusions(w io.Writer, who string, classes []string, cm map[string]map[string]int) {
 	type mix struct {
 		truth, taken string
 		n, of        int
@@ -199,7 +234,7 @@ func writeConfusions(w io.Writer, classes []string, cm map[string]map[string]int
 	if len(mixes) == 0 {
 		return
 	}
-	fmt.Fprintf(w, "\nCommonest mistakes (spade, held-out)\n")
+	fmt.Fprintf(w, "\nCommonest mistakes (%s, held-out)\n", who)
 	for _, x := range mixes[:min(8, len(mixes))] {
 		fmt.Fprintf(w, "  %-24s taken for %-24s %4d of %d\n", trunc(x.truth, 24), trunc(x.taken, 24), x.n, x.of)
 	}
