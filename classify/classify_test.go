@@ -229,7 +229,7 @@ func TestUnfamiliarFarOutsideButNotTrainingDigs(t *testing.T) {
 	b, log := demoModel(t)
 	c := New(b, nil)
 	// A reading no passive target gives: phase falling 150° across the band.
-	far, err := ParseInline("5k=170/1, 10k=120/1, 20k=70/1, 40k=20/1, id=50")
+	far, err := ParseInline("4.3k=170/1, 9.7k=120/1, 21.7k=70/1, 36.3k=20/1, id=50")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -256,10 +256,10 @@ func TestUnfamiliarFarOutsideButNotTrainingDigs(t *testing.T) {
 
 func TestFrequencyMismatchRefused(t *testing.T) {
 	b, _ := demoModel(t)
-	d, _ := ParseInline("5k=120/1, 10k=130/1, 15k=140/1, id=50")
+	d, _ := ParseInline("4.3k=120/1, 9.7k=130/1, 15k=140/1, id=50")
 	_, err := New(b, nil).Classify(d)
 	var fm *features.FreqMismatchError
-	if err == nil || !errorsAs(err, &fm) || !slices.Equal(fm.Missing, []int{20000, 40000}) || !slices.Equal(fm.Unexpected, []int{15000}) {
+	if err == nil || !errorsAs(err, &fm) || !slices.Equal(fm.Missing, []int{21700, 36300}) || !slices.Equal(fm.Unexpected, []int{15000}) {
 		t.Errorf("error %v", err)
 	}
 }

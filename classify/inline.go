@@ -20,7 +20,7 @@ var ErrInline = errors.New("bad reading")
 // screen then judges by apparent size) and gHZ=PHASE/AMP for a bare-ground
 // reading beside it:
 //
-//	5k=111.8/0.100, 10k=129.0/0.170, 20k=147.5/0.232, 40k=163.2/0.263, id=60
+//	4.3k=111.8/0.100, 9.7k=129.0/0.170, 21.7k=147.5/0.232, 36.3k=163.2/0.263, id=60
 //
 // Frequencies take the dig log's forms (5000, 5k) and may end in Hz
 // (5kHz). Numbers are parsed strictly: "0.1O" (a letter O) is refused,
@@ -30,7 +30,7 @@ func ParseInline(s string) (*features.Dig, error) {
 	var ground []features.Reading
 	fields := strings.FieldsFunc(s, func(r rune) bool { return r == ',' || r == ' ' || r == ';' || r == '\t' })
 	if len(fields) == 0 {
-		return nil, fmt.Errorf("%w: empty (want e.g. 5k=111.8/0.10, 20k=147.5/0.23)", ErrInline)
+		return nil, fmt.Errorf("%w: empty (want e.g. 4.3k=111.8/0.10, 21.7k=147.5/0.23)", ErrInline)
 	}
 	for _, f := range fields {
 		key, val, ok := strings.Cut(f, "=")

@@ -12,8 +12,10 @@ import (
 	"github.com/spade-detect/spade/features"
 )
 
-// DefaultFreqs are the demo instrument's frequencies, our choice.
-var DefaultFreqs = []int{5000, 10000, 20000, 40000}
+// DefaultFreqs are the demo instrument's frequencies, our own choice: four
+// spread over a decade, deliberately uneven (not a doubling series), so that
+// the demo recalls no particular instrument.
+var DefaultFreqs = []int{4300, 9700, 21700, 36300}
 
 // Scenario is a mix of sites.
 type Scenario struct {

@@ -33,18 +33,19 @@ func TestMatchesScikitLearnOnDemo(t *testing.T) {
 	// RandomForestClassifier(n_estimators=200, max_features="sqrt") with
 	// 5-fold StratifiedKFold(shuffle=True) on `spade features` of the demo
 	// history, mean of random_state 1, 2, 3 (train/bench/skref.py; command there):
-	// accuracy 0.8020, log-loss 0.6589. Issue 4: within 2 points and 0.05.
+	// accuracy 0.7982, log-loss 0.6935 (measured again for the demo at 4.3,
+	// 9.7, 21.7 and 36.3 kHz). Issue 4: within 2 points and 0.05.
 	// Compared raw, as scikit-learn's forest is.
 	ds, _ := demo(t)
 	ev, err := CrossValidate(context.Background(), ds, EvalOptions{Folds: 5, Seed: 1, Raw: true})
 	if err != nil {
 		t.Fatal(err)
 	}
-	if math.Abs(ev.Model.Accuracy-0.8020) > 0.02 {
-		t.Errorf("accuracy %.4f, scikit-learn 0.8020", ev.Model.Accuracy)
+	if math.Abs(ev.Model.Accuracy-0.7982) > 0.02 {
+		t.Errorf("accuracy %.4f, scikit-learn 0.7982", ev.Model.Accuracy)
 	}
-	if math.Abs(ev.Model.LogLoss-0.6589) > 0.05 {
-		t.Errorf("log-loss %.4f, scikit-learn 0.6589", ev.Model.LogLoss)
+	if math.Abs(ev.Model.LogLoss-0.6935) > 0.05 {
+		t.Errorf("log-loss %.4f, scikit-learn 0.6935", ev.Model.LogLoss)
 	}
 	// Shrinkage toward the class shares lowers the held-out log-loss below
 	// both (issue 12), at the same accuracy.
@@ -52,7 +53,7 @@ func TestMatchesScikitLearnOnDemo(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if shrunk.Model.LogLoss >= ev.Model.LogLoss-0.05 || shrunk.Model.LogLoss >= 0.6589 || math.Abs(shrunk.Model.Accuracy-ev.Model.Accuracy) > 0.005 {
+	if shrunk.Model.LogLoss >= ev.Model.LogLoss-0.05 || shrunk.Model.LogLoss >= 0.6935 || math.Abs(shrunk.Model.Accuracy-ev.Model.Accuracy) > 0.005 {
 		t.Errorf("shrunk: accuracy %.4f, log-loss %.4f; raw %.4f, %.4f", shrunk.Model.Accuracy, shrunk.Model.LogLoss, ev.Model.Accuracy, ev.Model.LogLoss)
 	}
 	// And the extra frequencies must buy something over the one number.

@@ -36,7 +36,7 @@ func (o *classifyOptions) AddFlags(fs *pflag.FlagSet) {
 	o.format.AddFlags(fs, "table", "json", "csv")
 	o.values.AddFlags(fs)
 	fs.StringVar(&o.model, "model", "", "the model file from spade train (required)")
-	fs.StringVarP(&o.reading, "reading", "r", "", `one reading typed inline: "5k=111.8/0.10, 20k=147.5/0.23, id=60"`)
+	fs.StringVarP(&o.reading, "reading", "r", "", `one reading typed inline: "4.3k=111.8/0.10, 21.7k=147.5/0.23, id=60"`)
 	fs.IntVar(&o.top, "top", 5, "classes shown per reading in the table")
 	fs.StringVarP(&o.output, "output", "o", "-", "write the results to `FILE` (- is standard output)")
 }
@@ -71,7 +71,7 @@ by apparent size), gHZ=PHASE/AMP a bare-ground reading beside the target.
 Files of any size stream through in constant memory.`,
 		Example: "  spade classify --model my.spade new.csv\n" +
 			"  spade classify --model my.spade --values values.toml --format json new.jsonl\n" +
-			"  spade classify --model my.spade -r \"5k=111.8/0.10, 10k=129.0/0.17, 20k=147.5/0.23, 40k=163.2/0.26, id=60\"",
+			"  spade classify --model my.spade -r \"4.3k=111.8/0.10, 9.7k=129.0/0.17, 21.7k=147.5/0.23, 36.3k=163.2/0.26, id=60\"",
 		Args: cobra.MaximumNArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error { return runClassify(cmd.Context(), g, opts, args) },
 	}

@@ -39,7 +39,7 @@ func newDemoCommand(g *globalOptions) *cobra.Command {
 		Short: "Run the whole job on the embedded, invented demo dig history",
 		Long: `demo runs spade end to end on an invented history of 1500 digs from two
 invented sites (Harrowmere Farm, an iron-rich inland field, and Sandle Reach, a
-tidal beach), simulated by spade's own physics models at 5, 10, 20 and 40 kHz:
+tidal beach), simulated by spade's own physics models at 4.3, 9.7, 21.7 and 36.3 kHz:
 it trains a model, prints the cross-validated report next to the single-number
 baseline with the dig-saving figures, shows the ambiguous display-ID ranges,
 classifies twelve example readings (one of them possible ordnance, one unlike

@@ -114,13 +114,13 @@ func TestClassifyTableFits80Columns(t *testing.T) {
 
 func TestClassifyFrequencyMismatch(t *testing.T) {
 	_, model, _, _, _ := demoModel(t)
-	in := "dig,phase_5000,amp_5000,phase_15000,amp_15000\nx1,120,0.5,130,0.6\n"
+	in := "dig,phase_4300,amp_4300,phase_15000,amp_15000\nx1,120,0.5,130,0.6\n"
 	_, stderr, code := spade(t, in, "classify", "--model", model, "-")
-	want := "spade: -:2: frequencies differ from the model's: missing 10000 Hz, 20000 Hz, 40000 Hz; not in the model 15000 Hz\n"
+	want := "spade: -:2: frequencies differ from the model's: missing 9700 Hz, 21700 Hz, 36300 Hz; not in the model 15000 Hz\n"
 	if code != exitError || stderr != want {
 		t.Errorf("exit %d, stderr %q\nwant %q", code, stderr, want)
 	}
-	_, stderr, code = spade(t, "", "classify", "--model", model, "-r", "5k=120/0.5, 15k=130/0.6")
+	_, stderr, code = spade(t, "", "classify", "--model", model, "-r", "4.3k=120/0.5, 15k=130/0.6")
 	if code != exitError || !strings.Contains(stderr, "not in the model 15000 Hz") {
 		t.Errorf("inline: exit %d, stderr %q", code, stderr)
 	}
@@ -128,11 +128,11 @@ func TestClassifyFrequencyMismatch(t *testing.T) {
 
 func TestClassifyBadRows(t *testing.T) {
 	_, model, _, _, _ := demoModel(t)
-	head := "dig,display_id,phase_5000,amp_5000,phase_10000,amp_10000,phase_20000,amp_20000,phase_40000,amp_40000\n"
+	head := "dig,display_id,phase_4300,amp_4300,phase_9700,amp_9700,phase_21700,amp_21700,phase_36300,amp_36300\n"
 	good := "a1,60,111.8,0.10,129.0,0.17,147.5,0.23,163.2,0.26\n"
 	bad := "a2,60,111.8,-0.10,129.0,0.17,147.5,0.23,163.2,0.26\n"
 	_, stderr, code := spade(t, head+good+bad, "classify", "--model", model, "-")
-	if code != exitError || stderr != "spade: -:3: amp_5000: must be > 0, got -0.1\n" {
+	if code != exitError || stderr != "spade: -:3: amp_4300: must be > 0, got -0.1\n" {
 		t.Errorf("exit %d, stderr %q", code, stderr)
 	}
 	out, stderr, code := spade(t, head+good+bad, "classify", "--model", model, "--skip-bad", "--format", "csv", "-")

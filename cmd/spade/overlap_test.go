@@ -38,7 +38,7 @@ func TestOverlapWithModelGolden(t *testing.T) {
 
 func TestOverlapByPhase(t *testing.T) {
 	_, model, history, _, _ := demoModel(t)
-	out, _, code := spade(t, "", "overlap", history, "--model", model, "--by", "phase_10k", "--bin", "5", "--format", "csv")
+	out, _, code := spade(t, "", "overlap", history, "--model", model, "--by", "phase_9.7k", "--bin", "5", "--format", "csv")
 	if code != 0 || !strings.HasPrefix(out, "from,to,digs,entropy_bits,ambiguous") {
 		t.Fatalf("exit %d: %q", code, out[:min(len(out), 200)])
 	}

@@ -35,7 +35,7 @@ func (o *responseOptions) AddFlags(fs *pflag.FlagSet) {
 	fs.Float64Var(&o.diameterMM, "diameter-mm", 20, "outer diameter in millimetres (a ring: of the wire's centre line)")
 	fs.Float64Var(&o.wireMM, "wire-mm", 1.5, "ring: wire diameter in millimetres")
 	fs.Float64Var(&o.thickMM, "thickness-mm", 1.5, "disc: thickness in millimetres")
-	fs.StringVar(&o.freqs, "freqs", "5000,10000,20000,40000", "frequencies in hertz, comma separated")
+	fs.StringVar(&o.freqs, "freqs", "4300,9700,21700,36300", "frequencies in hertz, comma separated")
 	fs.StringVar(&o.format, "format", "table", "table or json")
 }
 

@@ -28,7 +28,7 @@ func (o *simulateOptions) AddFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.scenario, "scenario", "demo", "the invented scenario: "+strings.Join(names, ", "))
 	fs.IntVar(&o.n, "n", 1000, "how many dug targets")
 	fs.Uint64Var(&o.seed, "seed", 1, "random seed; the same seed gives the same file")
-	fs.StringVar(&o.freqs, "freqs", "", "frequencies in hertz, comma separated (default 5000,10000,20000,40000)")
+	fs.StringVar(&o.freqs, "freqs", "", "frequencies in hertz, comma separated (default 4300,9700,21700,36300)")
 	fs.BoolVar(&o.unlabelled, "unlabelled", false, "leave material and shape empty: readings to classify")
 	fs.StringVarP(&o.output, "output", "o", "-", "write to `FILE` (- is standard output)")
 }
