@@ -70,8 +70,8 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 	}
 	spec := features.NewSpec(log.Freqs, log.HasDisplayID)
 	fmt.Fprintf(w, "spade demo: the main job on an invented dig history\n\n")
-	fmt.Fprint(w, wrap(fmt.Sprintf("History: %d digs from two invented sites, Harrowmere Farm (an iron-rich field) and Sandle Reach (a tidal beach), read at %s Hz, each with what came out of the ground. Values: datasets/demo/values.toml.",
-		len(log.Digs), joinInts(log.Freqs)), 78, ""))
+	fmt.Fprint(w, wrap(fmt.Sprintf("History: %d digs from two invented sites, Harrowmere Farm (an iron-rich field) and Sandle Reach (a tidal beach), read at %s, each with what came out of the ground. Values: datasets/demo/values.toml.",
+		len(log.Digs), features.HzList(log.Freqs)), 78, ""))
 
 	// 1. How good is it, honestly?
 	fmt.Fprintf(w, "\n== 1. How good is it? Cross-validated, next to the single number\n\n")
