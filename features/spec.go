@@ -93,23 +93,16 @@ type FreqMismatchError struct {
 func (e *FreqMismatchError) Error() string {
 	var parts []string
 	if len(e.Missing) > 0 {
-		parts = append(parts, "missing "+hzList(e.Missing))
+		parts = append(parts, "missing "+HzList(e.Missing))
 	}
 	if len(e.Unexpected) > 0 {
-		parts = append(parts, "not in the model "+hzList(e.Unexpected))
+		parts = append(parts, "not in the model "+HzList(e.Unexpected))
 	}
 	return ErrFrequencies.Error() + ": " + strings.Join(parts, "; ")
 }
 
 func (e *FreqMismatchError) Unwrap() error { return ErrFrequencies }
 
-func hzList(hz []int) string {
-	s := make([]string, len(hz))
-	for i, h := range hz {
-		s[i] = strconv.Itoa(h) + " Hz"
-	}
-	return strings.Join(s, ", ")
-}
 
 // CheckFreqs reports a *FreqMismatchError unless freqs are the spec's.
 func (s *FeatureSpec) CheckFreqs(freqs []int) error {

@@ -116,7 +116,7 @@ func TestClassifyFrequencyMismatch(t *testing.T) {
 	_, model, _, _, _ := demoModel(t)
 	in := "dig,phase_4300,amp_4300,phase_15000,amp_15000\nx1,120,0.5,130,0.6\n"
 	_, stderr, code := spade(t, in, "classify", "--model", model, "-")
-	want := "spade: -:2: frequencies differ from the model's: missing 9700 Hz, 21700 Hz, 36300 Hz; not in the model 15000 Hz\n"
+	want := "spade: -:2: frequencies differ from the model's: missing 9700, 21700 and 36300 Hz; not in the model 15000 Hz\n"
 	if code != exitError || stderr != want {
 		t.Errorf("exit %d, stderr %q\nwant %q", code, stderr, want)
 	}
