@@ -103,7 +103,6 @@ func (e *FreqMismatchError) Error() string {
 
 func (e *FreqMismatchError) Unwrap() error { return ErrFrequencies }
 
-
 // CheckFreqs reports a *FreqMismatchError unless freqs are the spec's.
 func (s *FeatureSpec) CheckFreqs(freqs []int) error {
 	if slices.Equal(freqs, s.Freqs) {
