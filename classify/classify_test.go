@@ -10,7 +10,6 @@ import (
 	"strings"
 	"sync"
 	"testing"
-	"time"
 
 	"github.com/spade-detect/spade/datasets"
 	"github.com/spade-detect/spade/features"
@@ -32,7 +31,7 @@ func demoModel(t testing.TB) (*train.Bundle, *features.Log) {
 			t.Fatal(err)
 		}
 		spec := features.NewSpec(log.Freqs, log.HasDisplayID)
-		model.b, err = train.TrainBundle(context.Background(), log, spec, train.TrainOptions{Forest: train.Options{Trees: 100, Seed: 1}, Now: time.Unix(0, 0)})
+		model.b, err = train.TrainBundle(context.Background(), log, spec, train.TrainOptions{Forest: train.Options{Trees: 100, Seed: 1}})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -303,7 +302,7 @@ func BenchmarkClassifyReading(b *testing.B) {
 		{"history=demo-1500", demoLog},
 		{"history=5000", &features.Log{Name: "sim", Freqs: datasets.DefaultFreqs, Digs: digs5k, HasDisplayID: true}},
 	} {
-		bundle, err := train.TrainBundle(context.Background(), h.log, features.NewSpec(h.log.Freqs, true), train.TrainOptions{Forest: train.Options{Trees: 200, Seed: 1}, Now: time.Unix(0, 0)})
+		bundle, err := train.TrainBundle(context.Background(), h.log, features.NewSpec(h.log.Freqs, true), train.TrainOptions{Forest: train.Options{Trees: 200, Seed: 1}})
 		if err != nil {
 			b.Fatal(err)
 		}

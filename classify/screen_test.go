@@ -5,7 +5,6 @@ import (
 	"math"
 	"strings"
 	"testing"
-	"time"
 
 	"github.com/spade-detect/spade/datasets"
 	"github.com/spade-detect/spade/features"
@@ -35,7 +34,7 @@ func newScreenScenario(t testing.TB) *screenScenario {
 	}
 	log := &features.Log{Name: "history.csv", Freqs: datasets.DefaultFreqs, Digs: digs, HasDisplayID: true}
 	spec := features.NewSpec(log.Freqs, true)
-	b, err := train.TrainBundle(context.Background(), log, spec, train.TrainOptions{Forest: train.Options{Trees: 100, Seed: 3}, Now: time.Unix(0, 0)})
+	b, err := train.TrainBundle(context.Background(), log, spec, train.TrainOptions{Forest: train.Options{Trees: 100, Seed: 3}})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -56,7 +56,7 @@ func BenchmarkPredict(b *testing.B) {
 // under a second).
 func BenchmarkLoad(b *testing.B) {
 	ds := simulated(b, 5000)
-	bundle, err := TrainDataset(context.Background(), ds, features.NewSpec(datasets.DefaultFreqs, true), TrainOptions{Forest: Options{Trees: 200, Seed: 1}, Now: testDay})
+	bundle, err := TrainDataset(context.Background(), ds, features.NewSpec(datasets.DefaultFreqs, true), TrainOptions{Forest: Options{Trees: 200, Seed: 1}})
 	if err != nil {
 		b.Fatal(err)
 	}

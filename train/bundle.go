@@ -58,16 +58,21 @@ var (
 
 // Summary is what a model was trained on and how well it did.
 type Summary struct {
-	SpadeVersion string             `json:"spade_version"`
-	Created      string             `json:"created"` // YYYY-MM-DD
-	Seed         uint64             `json:"seed"`
-	Trees        int                `json:"trees"`
-	Mtry         int                `json:"mtry"`
-	Digs         int                `json:"digs"`
-	ClassCounts  map[string]int     `json:"class_counts"`
-	OutOfBag     Metrics            `json:"out_of_bag"`
-	Importance   map[string]float64 `json:"importance"`
-	Skipped      int                `json:"skipped_rows"`
+	SpadeVersion string `json:"spade_version"`
+	// Created is the day a model of spade 0.1 before issue 14 was made;
+	// read from such files, never written now (it broke "same seed, same
+	// bytes" from one day to the next).
+	Created string `json:"created,omitempty"`
+	// LatestDig is the last date among the training digs, "" without dates.
+	LatestDig   string             `json:"latest_dig,omitempty"`
+	Seed        uint64             `json:"seed"`
+	Trees       int                `json:"trees"`
+	Mtry        int                `json:"mtry"`
+	Digs        int                `json:"digs"`
+	ClassCounts map[string]int     `json:"class_counts"`
+	OutOfBag    Metrics            `json:"out_of_bag"`
+	Importance  map[string]float64 `json:"importance"`
+	Skipped     int                `json:"skipped_rows"`
 	// NoScreen says why the model has no ordnance screen; empty when it has.
 	NoScreen string `json:"no_screen,omitempty"`
 }

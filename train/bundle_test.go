@@ -133,7 +133,7 @@ func FuzzUnmarshal(f *testing.F) {
 	for i := range idx {
 		idx[i] = i * 20
 	}
-	small, err := TrainDataset(context.Background(), ds.Subset(idx), spec, TrainOptions{Forest: Options{Trees: 2, Seed: 1}, Now: testDay})
+	small, err := TrainDataset(context.Background(), ds.Subset(idx), spec, TrainOptions{Forest: Options{Trees: 2, Seed: 1}})
 	if err != nil {
 		f.Fatal(err)
 	}

@@ -5,7 +5,9 @@ import (
 	"context"
 	"math"
 	"runtime"
+	"slices"
 	"testing"
+	"time"
 
 	"github.com/sjwhitworth/golearn/base"
 	"github.com/sjwhitworth/golearn/trees"
@@ -162,6 +164,16 @@ func TestSameSeedSameBytesAcrossGOMAXPROCS(t *testing.T) {
 	other, _ := trainSmall(t, 20, 12).Marshal()
 	if bytes.Equal(one, other) {
 		t.Error("seeds 11 and 12 give the same model file")
+	}
+	// Issue 14: nothing of the day it was made is in the bytes, so they
+	// are the same tomorrow. The date the model carries is its data's.
+	b := trainSmall(t, 20, 11)
+	ds, _ := demo(t)
+	if b.Summary.Created != "" || b.Summary.LatestDig != slices.Max(ds.Dates) || b.Summary.LatestDig == "" {
+		t.Errorf("created %q, latest dig %q; the data's last date is %q", b.Summary.Created, b.Summary.LatestDig, slices.Max(ds.Dates))
+	}
+	if today := time.Now().UTC().Format(time.DateOnly); !slices.Contains(ds.Dates, today) && bytes.Contains(one, []byte(today)) {
+		t.Errorf("the model file holds today's date %s", today)
 	}
 }
 

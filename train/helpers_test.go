@@ -5,7 +5,6 @@ import (
 	"context"
 	"sync"
 	"testing"
-	"time"
 
 	"github.com/sjwhitworth/golearn/base"
 	"github.com/spade-detect/spade/datasets"
@@ -49,11 +48,9 @@ func demo(t testing.TB) (*Dataset, *features.FeatureSpec) {
 	return demoOnce.ds, demoOnce.spec
 }
 
-var testDay = time.Date(2026, 12, 2, 0, 0, 0, 0, time.UTC)
-
 func trainSmall(t testing.TB, trees int, seed uint64) *Bundle {
 	ds, spec := demo(t)
-	b, err := TrainDataset(context.Background(), ds, spec, TrainOptions{Label: features.LabelBoth, Forest: Options{Trees: trees, Seed: seed}, Now: testDay, Version: "test"})
+	b, err := TrainDataset(context.Background(), ds, spec, TrainOptions{Label: features.LabelBoth, Forest: Options{Trees: trees, Seed: seed}, Version: "test"})
 	if err != nil {
 		t.Fatal(err)
 	}

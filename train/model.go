@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"math"
 	"strings"
-	"time"
 
 	"github.com/spade-detect/spade/features"
 )
@@ -15,9 +14,8 @@ import (
 type TrainOptions struct {
 	Label   features.Label
 	Forest  Options
-	Now     time.Time // the model's date; the same date and seed give the same bytes
-	Version string    // spade's version, recorded in the model
-	Skipped int       // rows the reader skipped, recorded in the summary
+	Version string // spade's version, recorded in the model
+	Skipped int    // rows the reader skipped, recorded in the summary
 	// Screen configures the ordnance screen; NoScreen leaves it out (for
 	// cross-validation folds, which do not need one).
 	Screen   ScreenOptions
@@ -85,7 +83,7 @@ func TrainDataset(ctx context.Context, ds *Dataset, spec *features.FeatureSpec, 
 		shrink.Apply(oob[i])
 	}
 	summary := Summary{
-		SpadeVersion: o.Version, Created: o.Now.UTC().Format(time.DateOnly), Seed: fo.Seed,
+		SpadeVersion: o.Version, LatestDig: latestDate(ds.Dates), Seed: fo.Seed,
 		Trees: fo.Trees, Mtry: forest.Mtry, Digs: ds.Rows(), ClassCounts: map[string]int{},
 		OutOfBag: Score(ds.Classes, ds.Y, oob), Importance: map[string]float64{}, Skipped: o.Skipped,
 	}
@@ -108,4 +106,15 @@ func TrainDataset(ctx context.Context, ds *Dataset, spec *features.FeatureSpec, 
 		Baseline: FitBaseline(ds.Names[axis], ds.Cols[axis], ds.Y, K),
 		Training: tr, Forest: forest, Shrinkage: &shrink,
 	}, nil
+}
+
+// latestDate is the last of the digs' dates (YYYY-MM-DD sorts as text), or
+// "" when none has one. The model carries it instead of the day it was
+// made, so the same seed and data give the same bytes on any day.
+func latestDate(dates []string) string {
+	latest := ""
+	for _, d := range dates {
+		latest = max(latest, d)
+	}
+	return latest
 }

@@ -22,7 +22,7 @@ func smallScreenModel(t testing.TB, label features.Label) (*Bundle, *features.Lo
 	}
 	log.Digs = log.Digs[:300]
 	spec := features.NewSpec(log.Freqs, log.HasDisplayID)
-	b, err := TrainBundle(context.Background(), log, spec, TrainOptions{Label: label, Forest: Options{Trees: 10, Seed: 1}, Now: testDay,
+	b, err := TrainBundle(context.Background(), log, spec, TrainOptions{Label: label, Forest: Options{Trees: 10, Seed: 1},
 		Screen: ScreenOptions{Trees: 20, Library: 300}})
 	if err != nil {
 		t.Fatal(err)

@@ -1,10 +1,7 @@
 package main
 
 import (
-	"os"
-	"strconv"
 	"strings"
-	"time"
 
 	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/features"
@@ -92,15 +89,4 @@ func (v *valuesFlags) check(vals *classify.Values, classes []string, label featu
 		source = "--keep"
 	}
 	return vals.CheckNames(source, classes, label)
-}
-
-// today is the model's date: SOURCE_DATE_EPOCH when set (reproducible
-// builds' convention), else now.
-func today() time.Time {
-	if s := os.Getenv("SOURCE_DATE_EPOCH"); s != "" {
-		if sec, err := strconv.ParseInt(s, 10, 64); err == nil {
-			return time.Unix(sec, 0).UTC()
-		}
-	}
-	return time.Now().UTC()
 }

@@ -98,7 +98,7 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 	fmt.Fprintf(w, "\n== 3. New readings, classified by a model of the whole history\n\n")
 	bar := g.progress(opts.trees+screenTrees(false, log), "growing trees", false)
 	step := func(int) { bar.step(1) }
-	bundle, err := train.TrainDataset(ctx, ds, spec, train.TrainOptions{Label: features.LabelBoth, Now: today(), Version: version,
+	bundle, err := train.TrainDataset(ctx, ds, spec, train.TrainOptions{Label: features.LabelBoth, Version: version,
 		Forest: train.Options{Trees: opts.trees, Seed: opts.seed, Progress: step}})
 	if err == nil {
 		err = bundle.AddScreen(ctx, log, train.ScreenOptions{Seed: opts.seed, Progress: step})

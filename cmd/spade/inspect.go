@@ -49,7 +49,14 @@ func runInspect(_ context.Context, g *globalOptions, opts inspectOptions, args [
 	}
 	fmt.Fprintf(w, "model %s (format %d)\n", args[0], b.Format)
 	fmt.Fprint(w, wrap(hazardStatus(b).Text, 78, "  "))
-	fmt.Fprintf(w, "  made by spade %s on %s, seed %d\n", s.SpadeVersion, s.Created, s.Seed)
+	switch {
+	case s.Created != "":
+		fmt.Fprintf(w, "  made by spade %s on %s, seed %d\n", s.SpadeVersion, s.Created, s.Seed)
+	case s.LatestDig != "":
+		fmt.Fprintf(w, "  made by spade %s, seed %d, from digs up to %s\n", s.SpadeVersion, s.Seed, s.LatestDig)
+	default:
+		fmt.Fprintf(w, "  made by spade %s, seed %d, from digs without dates\n", s.SpadeVersion, s.Seed)
+	}
 	fmt.Fprintf(w, "  frequencies  %s Hz (amplitudes relative to %d Hz)\n", joinInts(b.Spec.Freqs), b.Spec.RefHz)
 	fmt.Fprintf(w, "  forest       %d trees, %d features tried per split\n", s.Trees, s.Mtry)
 	fmt.Fprintf(w, "  trained on   %d digs (%d rows skipped), label %s\n", s.Digs, s.Skipped, b.Label)

@@ -80,7 +80,7 @@ func runTrain(ctx context.Context, g *globalOptions, opts trainOptions, args []s
 	bar := g.progress(opts.trees+screenTrees(opts.noScreen, log), "growing trees", opts.format.json())
 	step := func(int) { bar.step(1) }
 	bundle, err := train.TrainBundle(ctx, log, spec, train.TrainOptions{
-		Label: kind, Now: today(), Version: version, Skipped: len(log.Bad) + log.Unlabelled,
+		Label: kind, Version: version, Skipped: len(log.Bad) + log.Unlabelled,
 		Forest: train.Options{Trees: opts.trees, Seed: opts.seed, Progress: step},
 		Screen: train.ScreenOptions{Progress: step}, NoScreen: opts.noScreen,
 	})
