@@ -1,24 +1,62 @@
 package features
 
 import (
+	"context"
+	"errors"
 	"fmt"
 	"io"
+	"io/fs"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"strconv"
+	"time"
 )
+
+// StaleTemp is how old a temporary file of WriteFileAtomic's must be before
+// a later write to the same path removes it: such a file is left only by a
+// run killed outright (kill -9, a power cut), and an hour is far longer than
+// any write takes, so a concurrent writer's file is never touched.
+const StaleTemp = time.Hour
 
 // WriteFileAtomic writes a file through a temporary file in the same folder,
 // synced and then renamed over path, so that a reader (or an interrupted
 // run) sees the old file or the new one and never half of one. write gets the
 // temporary file; when it fails, the old file is left as it was.
-func WriteFileAtomic(path string, write func(io.Writer) error) (err error) {
+func WriteFileAtomic(path string, write func(io.Writer) error) error {
+	return WriteFileAtomicContext(context.Background(), path, write)
+}
+
+// WriteFileAtomicContext is WriteFileAtomic that stops when ctx is done
+// (Ctrl-C): the write fails with ctx's error at its next write call, the
+// temporary file is removed and the old file stays as it was.
+//
+// The new file takes the mode of the file it replaces; a new path gets
+// 0666 less the umask, as any file the user's shell creates. Temporary
+// files of this path older than StaleTemp are removed first.
+func WriteFileAtomicContext(ctx context.Context, path string, write func(io.Writer) error) (err error) {
 	dir, base := filepath.Split(path)
 	if dir == "" {
 		dir = "."
 	}
-	tmp, err := os.CreateTemp(dir, "."+base+".tmp-*")
+	prefix := "." + base + ".tmp-"
+	removeStale(dir, prefix)
+	var mode fs.FileMode
+	keepMode := false
+	if fi, err := os.Stat(path); err == nil && fi.Mode().IsRegular() {
+		mode, keepMode = fi.Mode().Perm(), true
+	}
+	// OpenFile with 0666 lets the kernel apply the umask.
+	var tmp *os.File
+	for range 100 {
+		name := filepath.Join(dir, prefix+strconv.FormatUint(rand.Uint64(), 36))
+		tmp, err = os.OpenFile(name, os.O_RDWR|os.O_CREATE|os.O_EXCL, 0o666)
+		if !errors.Is(err, fs.ErrExist) {
+			break
+		}
+	}
 	if err != nil {
-		return fmt.Errorf("features: %w", err)
+		return fmt.Errorf("cannot write %s: %w", path, pathErr(err))
 	}
 	defer func() {
 		if err != nil {
@@ -26,20 +64,70 @@ func WriteFileAtomic(path string, write func(io.Writer) error) (err error) {
 			os.Remove(tmp.Name())
 		}
 	}()
-	if err = write(tmp); err != nil {
+	if err = write(ctxWriter{ctx, tmp}); err != nil {
+		return err
+	}
+	if err = ctx.Err(); err != nil {
 		return err
 	}
 	if err = tmp.Sync(); err != nil {
-		return fmt.Errorf("features: %w", err)
+		return fmt.Errorf("cannot write %s: %w", path, pathErr(err))
 	}
 	if err = tmp.Close(); err != nil {
-		return fmt.Errorf("features: %w", err)
+		return fmt.Errorf("cannot write %s: %w", path, pathErr(err))
 	}
-	if err = os.Chmod(tmp.Name(), 0o644); err != nil {
-		return fmt.Errorf("features: %w", err)
+	if keepMode {
+		if err = os.Chmod(tmp.Name(), mode); err != nil {
+			return fmt.Errorf("cannot write %s: %w", path, pathErr(err))
+		}
 	}
 	if err = os.Rename(tmp.Name(), path); err != nil {
-		return fmt.Errorf("features: %w", err)
+		return fmt.Errorf("cannot write %s: %w", path, pathErr(err))
 	}
 	return nil
+}
+
+// ctxWriter fails every write once ctx is done.
+type ctxWriter struct {
+	ctx context.Context
+	w   io.Writer
+}
+
+func (c ctxWriter) Write(p []byte) (int, error) {
+	if err := c.ctx.Err(); err != nil {
+		return 0, err
+	}
+	return c.w.Write(p)
+}
+
+// removeStale removes this path's temporary files left by a killed run.
+func removeStale(dir, prefix string) {
+	matches, _ := filepath.Glob(filepath.Join(dir, globEscape(prefix)+"*"))
+	for _, m := range matches {
+		if fi, err := os.Lstat(m); err == nil && fi.Mode().IsRegular() && time.Since(fi.ModTime()) > StaleTemp {
+			os.Remove(m)
+		}
+	}
+}
+
+// globEscape quotes the pattern characters of a file name.
+func globEscape(s string) string {
+	out := make([]byte, 0, len(s))
+	for i := 0; i < len(s); i++ {
+		switch s[i] {
+		case '*', '?', '[', '\\':
+			out = append(out, '\\')
+		}
+		out = append(out, s[i])
+	}
+	return string(out)
+}
+
+// pathErr drops the path an *fs.PathError repeats (the temporary file's).
+func pathErr(err error) error {
+	var pe *fs.PathError
+	if errors.As(err, &pe) {
+		return pe.Err
+	}
+	return err
 }

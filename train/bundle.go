@@ -2,6 +2,7 @@ package train
 
 import (
 	"bufio"
+	"context"
 	"bytes"
 	"crypto/sha256"
 	"encoding/binary"
@@ -158,8 +159,11 @@ func (b *Bundle) Encode(w io.Writer) error {
 
 // Save writes the bundle atomically: a temporary file in the same folder,
 // then a rename, so an interrupted save never destroys the previous model.
-func (b *Bundle) Save(path string) error {
-	return features.WriteFileAtomic(path, func(w io.Writer) error {
+func (b *Bundle) Save(path string) error { return b.SaveContext(context.Background(), path) }
+
+// SaveContext is Save that stops, writing nothing, when ctx is done.
+func (b *Bundle) SaveContext(ctx context.Context, path string) error {
+	return features.WriteFileAtomicContext(ctx, path, func(w io.Writer) error {
 		bw := bufio.NewWriterSize(w, 1<<20)
 		if err := b.Encode(bw); err != nil {
 			return err

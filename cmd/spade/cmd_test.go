@@ -117,7 +117,7 @@ func TestEvaluateWithoutValues(t *testing.T) {
 }
 
 func TestInterruptedTrainWritesNothing(t *testing.T) {
-	// Ctrl-C cancels the context: the run stops with exit 1, says so in one
+	// Ctrl-C cancels the context: the run stops with exit 130, says so in one
 	// line, and leaves no model and no temporary file behind.
 	dir := t.TempDir()
 	log, _, _ := spade(t, "", "simulate", "--n", "300", "--seed", "2")
@@ -126,7 +126,7 @@ func TestInterruptedTrainWritesNothing(t *testing.T) {
 	var out, errb bytes.Buffer
 	model := filepath.Join(dir, "m.spade")
 	code := run(ctx, []string{"train", "-", "-o", model}, strings.NewReader(log), &out, &errb)
-	if code != exitError || errb.String() != "spade: interrupted; nothing was written\n" {
+	if code != exitInterrupt || errb.String() != "spade: interrupted; nothing was written\n" {
 		t.Errorf("exit %d, stderr %q", code, errb.String())
 	}
 	if entries, _ := os.ReadDir(dir); len(entries) != 0 {

@@ -110,7 +110,7 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 	fmt.Fprint(w, wrap(hazardStatus(bundle).Text+" The readings below have no depth, so the screen judges them by phase and amplitude and says at most \"cannot be ruled out\"; the history's own ordnance digs give the \"likely\" tier.", 78, ""))
 	fmt.Fprintln(w)
 	modelPath := filepath.Join(opts.dir, "demo.spade")
-	if err := bundle.Save(modelPath); err != nil {
+	if err := bundle.SaveContext(ctx, modelPath); err != nil {
 		return fmt.Errorf("demo: %w", err)
 	}
 	readings, err := features.ReadLog(bytes.NewReader(datasets.DemoReadings), datasets.DemoReadingsName, features.ReadOptions{})

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bufio"
+	"context"
 	"fmt"
 	"io"
 	"os"
@@ -20,7 +21,11 @@ func (g *globalOptions) writeOutput(name string, write func(io.Writer) error) er
 		}
 		return bw.Flush()
 	}
-	return features.WriteFileAtomic(name, func(w io.Writer) error {
+	ctx := g.ctx
+	if ctx == nil {
+		ctx = context.Background()
+	}
+	return features.WriteFileAtomicContext(ctx, name, func(w io.Writer) error {
 		bw := bufio.NewWriter(w)
 		if err := write(bw); err != nil {
 			return err

@@ -31,6 +31,9 @@ const (
 	exitOK    = 0
 	exitError = 1 // an error in the data or the run
 	exitUsage = 2 // a usage error: unknown flag, wrong arguments
+	// exitInterrupt is 128 + SIGINT, what a shell reports for a command
+	// stopped by Ctrl-C, so scripts tell "stopped" from "failed".
+	exitInterrupt = 130
 )
 
 // usageError marks a mistake in the command line.
@@ -51,6 +54,8 @@ type globalOptions struct {
 	// isTerminal reports whether stderr is a terminal, for progress bars;
 	// tests leave it false.
 	isTerminal bool
+	// ctx is the run's context (done on Ctrl-C), for the output writers.
+	ctx context.Context
 }
 
 func versionString() string {
@@ -81,7 +86,8 @@ first. A probability is never a guarantee.
 Exit codes:
   0  success
   1  an error in the data or the run (the message names file, line and column)
-  2  a usage error (unknown flag, missing argument)`
+  2  a usage error (unknown flag, missing argument)
+  130  stopped by Ctrl-C (nothing half-written is left)`
 
 func newRootCommand(g *globalOptions) *cobra.Command {
 	root := &cobra.Command{
@@ -243,7 +249,7 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 			code = exitError
 		}
 	}()
-	g := &globalOptions{stdin: stdin, stdout: stdout, stderr: stderr, isTerminal: stderrIsTerminal(stderr)}
+	g := &globalOptions{stdin: stdin, stdout: stdout, stderr: stderr, isTerminal: stderrIsTerminal(stderr), ctx: ctx}
 	root := newRootCommand(g)
 	root.SetArgs(args)
 	root.SetIn(stdin)
@@ -269,7 +275,7 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 		fmt.Fprintf(stderr, "Run '%s --help' for usage.\n", path)
 		return exitUsage
 	case errors.Is(err, context.Canceled):
-		return exitError
+		return exitInterrupt
 	default:
 		return exitError
 	}

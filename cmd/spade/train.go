@@ -98,7 +98,7 @@ func runTrain(ctx context.Context, g *globalOptions, opts trainOptions, args []s
 			return err
 		}
 		g.stdout = g.stderr
-	} else if err := bundle.Save(opts.output); err != nil {
+	} else if err := bundle.SaveContext(ctx, opts.output); err != nil {
 		return fmt.Errorf("train: %w", err)
 	}
 	if opts.format.json() {

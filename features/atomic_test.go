@@ -1,0 +1,78 @@
+package features
+
+import (
+	"context"
+	"errors"
+	"io"
+	"os"
+	"path/filepath"
+	"slices"
+	"syscall"
+	"testing"
+	"time"
+)
+
+func TestAtomicWriteModes(t *testing.T) {
+	// Issue 14: a new file gets 0666 less the umask, as the shell's own
+	// files do; a replaced file keeps its mode.
+	dir := t.TempDir()
+	old := syscall.Umask(0o027)
+	defer syscall.Umask(old)
+	fresh := filepath.Join(dir, "new.csv")
+	if err := WriteFileAtomic(fresh, func(w io.Writer) error { _, err := io.WriteString(w, "a\n"); return err }); err != nil {
+		t.Fatal(err)
+	}
+	if fi, _ := os.Stat(fresh); fi.Mode().Perm() != 0o640 {
+		t.Errorf("new file mode %v, want 0640 under umask 027", fi.Mode().Perm())
+	}
+	kept := filepath.Join(dir, "kept.csv")
+	os.WriteFile(kept, []byte("old\n"), 0o600)
+	os.Chmod(kept, 0o604)
+	if err := WriteFileAtomic(kept, func(w io.Writer) error { _, err := io.WriteString(w, "new\n"); return err }); err != nil {
+		t.Fatal(err)
+	}
+	if fi, _ := os.Stat(kept); fi.Mode().Perm() != 0o604 {
+		t.Errorf("replaced file mode %v, want its own 0604", fi.Mode().Perm())
+	}
+}
+
+func TestAtomicWriteStaleTempsAndInterrupt(t *testing.T) {
+	dir := t.TempDir()
+	path := filepath.Join(dir, "m.spade")
+	os.WriteFile(path, []byte("the old model"), 0o644)
+	// One temporary file of a run killed two hours ago, one of a writer
+	// running now, and one of another file.
+	stale := filepath.Join(dir, ".m.spade.tmp-killed")
+	live := filepath.Join(dir, ".m.spade.tmp-running")
+	other := filepath.Join(dir, ".other.spade.tmp-killed")
+	for _, f := range []string{stale, live, other} {
+		os.WriteFile(f, []byte("x"), 0o600)
+	}
+	long := time.Now().Add(-2 * StaleTemp)
+	os.Chtimes(stale, long, long)
+	os.Chtimes(other, long, long)
+	// Ctrl-C during the write: it stops at the next write, the old file
+	// stays, and its temporary file goes.
+	ctx, cancel := context.WithCancel(context.Background())
+	err := WriteFileAtomicContext(ctx, path, func(w io.Writer) error {
+		if _, err := io.WriteString(w, "half a "); err != nil {
+			return err
+		}
+		cancel()
+		_, err := io.WriteString(w, "model")
+		return err
+	})
+	if !errors.Is(err, context.Canceled) {
+		t.Errorf("interrupted write: %v", err)
+	}
+	if b, _ := os.ReadFile(path); string(b) != "the old model" {
+		t.Errorf("old file now %q", b)
+	}
+	left, _ := filepath.Glob(filepath.Join(dir, ".*"))
+	want := []string{live, other}
+	slices.Sort(left)
+	slices.Sort(want)
+	if !slices.Equal(left, want) {
+		t.Errorf("left %v, want %v (the stale one removed, the live one and the other file's kept)", left, want)
+	}
+}
