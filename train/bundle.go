@@ -2,8 +2,8 @@ package train
 
 import (
 	"bufio"
-	"context"
 	"bytes"
+	"context"
 	"crypto/sha256"
 	"encoding/binary"
 	"encoding/json"
