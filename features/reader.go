@@ -40,6 +40,10 @@ type ReadOptions struct {
 	// what needs no phase reads such a log: the ambiguous ranges, and the
 	// single-number baseline.
 	DisplayIDOnly bool
+	// AllowDuplicateIDs lets a dig id come twice, and keeps no set of ids:
+	// for readings to classify, which are matched to nothing, so that
+	// reading them takes constant memory.
+	AllowDuplicateIDs bool
 }
 
 // rowSource is one file format's row parser.
@@ -224,7 +228,7 @@ func (r *Reader) check(d *Dig) error {
 	h := fnv.New64a()
 	h.Write([]byte(d.ID))
 	key := h.Sum64()
-	if line, dup := r.seen[key]; dup {
+	if line, dup := r.seen[key]; dup && !r.opts.AllowDuplicateIDs {
 		return &ParseError{File: r.name, Line: d.Line, Column: "dig", Err: cause(ErrDuplicateDig, "%q was used on line %d", d.ID, line)}
 	}
 	for _, f := range []struct{ name, v string }{{"dig", d.ID}, {"site", d.Site}, {"date", d.Date}, {"material", d.Material}, {"shape", d.Shape}} {
@@ -239,7 +243,9 @@ func (r *Reader) check(d *Dig) error {
 		return &ParseError{File: r.name, Line: d.Line, Column: labelColumn(d, r.opts.Require),
 			Err: fmt.Errorf("%w: training needs the %s of every dig (or --skip-unlabelled)", ErrUnlabelled, labelWords(r.opts.Require))}
 	}
-	r.seen[key] = d.Line
+	if !r.opts.AllowDuplicateIDs {
+		r.seen[key] = d.Line
+	}
 	if r.opts.PhaseOffset != 0 {
 		for i := range d.Readings {
 			d.Readings[i] = d.Readings[i].Rotate(r.opts.PhaseOffset)

@@ -121,13 +121,26 @@ func runClassify(ctx context.Context, g *globalOptions, opts classifyOptions, ar
 	defer bar.done()
 	return g.writeOutput(opts.output, func(w io.Writer) error {
 		out := newResultWriter(w, opts.format.value, bundle.Classes, opts.top, c.Warnings())
-		if err := classifyStream(ctx, c, next, name, func(r *classify.Result) error {
+		err := classifyStream(ctx, c, next, name, func(r *classify.Result) error {
 			bar.step(1)
 			return out.write(r)
-		}); err != nil {
-			return err
+		})
+		var pe *features.ParseError
+		if err != nil && (!errors.As(err, &pe) || out.n == 0) {
+			return err // an interrupt, a write error, or nothing good: nothing is kept
 		}
-		return out.close()
+		if err != nil {
+			// A bad row: the results of every reading before it are
+			// written, and the run still fails on it.
+			out.stopped(err)
+		}
+		if cerr := out.close(); cerr != nil {
+			return cerr
+		}
+		if err != nil {
+			return keepOutput{fmt.Errorf("%w (the results of the %s before it are written)", err, plural(out.n, "reading"))}
+		}
+		return nil
 	})
 }
 
@@ -152,6 +165,7 @@ func classifyStream(ctx context.Context, c *classify.Classifier, next func() (fe
 			return err
 		}
 		batch = batch[:0]
+		var readErr error
 		for len(batch) < classifyBatch {
 			d, err := next()
 			if errors.Is(err, io.EOF) {
@@ -159,7 +173,10 @@ func classifyStream(ctx context.Context, c *classify.Classifier, next func() (fe
 				break
 			}
 			if err != nil {
-				return err
+				// The readings before a bad row are classified and handed
+				// on first; then the row's error.
+				readErr, done = err, true
+				break
 			}
 			batch = append(batch, d)
 		}
@@ -194,6 +211,9 @@ func classifyStream(ctx context.Context, c *classify.Classifier, next func() (fe
 				return err
 			}
 		}
+		if readErr != nil {
+			return readErr
+		}
 	}
 	return nil
 }
@@ -219,7 +239,11 @@ func readingSource(g *globalOptions, opts classifyOptions, args []string) (func(
 	if err != nil {
 		return nil, "", nil, err
 	}
-	rd, err := features.NewReader(f, name, opts.log.readOptions())
+	ro := opts.log.readOptions()
+	// Readings to classify need no unique ids (each result keeps its
+	// input's order), so the reader keeps no id set: memory stays constant.
+	ro.AllowDuplicateIDs = true
+	rd, err := features.NewReader(f, name, ro)
 	if err != nil {
 		f.Close()
 		return nil, "", nil, err
@@ -307,6 +331,21 @@ func (o *resultWriter) write(r *classify.Result) error {
 		}
 		writeResultTable(o.w, r, o.top)
 		return nil
+	}
+}
+
+// stopped ends the results with the error that stopped them, where a
+// person reads them: a comment line in CSV, a line in the table. (JSON's
+// array stays valid; the exit status and standard error say it stopped.)
+func (o *resultWriter) stopped(err error) {
+	switch o.format {
+	case "csv":
+		if o.cw != nil {
+			o.cw.Flush()
+		}
+		fmt.Fprintf(o.w, "# stopped: %s\n", oneLine(err))
+	case "table":
+		fmt.Fprint(o.w, wrap("stopped: "+oneLine(err), 78, ""))
 	}
 }
 

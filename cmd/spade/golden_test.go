@@ -2,7 +2,9 @@ package main
 
 import (
 	"bytes"
+	"encoding/json"
 	"flag"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
@@ -131,12 +133,37 @@ func TestClassifyBadRows(t *testing.T) {
 	good := "a1,60,111.8,0.10,129.0,0.17,147.5,0.23,163.2,0.26\n"
 	bad := "a2,60,111.8,-0.10,129.0,0.17,147.5,0.23,163.2,0.26\n"
 	_, stderr, code := spade(t, head+good+bad, "classify", "--model", model, "-")
-	if code != exitError || stderr != "spade: -:3: amp_4300: must be > 0, got -0.1\n" {
+	if code != exitError || stderr != "spade: -:3: amp_4300: must be > 0, got -0.1 (the results of the 1 reading before it are written)\n" {
 		t.Errorf("exit %d, stderr %q", code, stderr)
 	}
 	out, stderr, code := spade(t, head+good+bad, "classify", "--model", model, "--skip-bad", "--format", "csv", "-")
 	if code != 0 || strings.Count(out, "\n") != 2 || !strings.Contains(stderr, "skipped 1 bad row") {
 		t.Errorf("--skip-bad: exit %d, %d lines, stderr %q", code, strings.Count(out, "\n"), stderr)
+	}
+	// Issue 14: 700 good rows (more than a batch) and a bad last one. Every
+	// good row's result is kept, on standard output and with -o, the CSV
+	// says where it stopped, the JSON stays valid, and the exit is 1.
+	var many strings.Builder
+	many.WriteString(head)
+	for i := range 700 {
+		fmt.Fprintf(&many, "g%d,60,111.8,0.10,129.0,0.17,147.5,0.23,163.2,0.26\n", i)
+	}
+	many.WriteString(bad)
+	out, stderr, code = spade(t, many.String(), "classify", "--model", model, "--format", "csv", "-")
+	if code != exitError || strings.Count(out, "\ng") != 700 || !strings.HasSuffix(out, "# stopped: -:702: amp_4300: must be > 0, got -0.1\n") || !strings.Contains(stderr, "the results of the 700 readings before it are written") {
+		t.Errorf("bad last row, stdout: exit %d, %d results, tail %q, stderr %q", code, strings.Count(out, "\ng"), out[max(0, len(out)-80):], stderr)
+	}
+	file := filepath.Join(t.TempDir(), "out.json")
+	_, stderr, code = spade(t, many.String(), "classify", "--model", model, "--format", "json", "-o", file, "-")
+	var results []map[string]any
+	b, _ := os.ReadFile(file)
+	if code != exitError || json.Unmarshal(b, &results) != nil || len(results) != 700 {
+		t.Errorf("bad last row, -o: exit %d, %d results kept, stderr %q", code, len(results), stderr)
+	}
+	// Readings to classify may share an id (no id set is kept).
+	out, _, code = spade(t, head+good+good, "classify", "--model", model, "--format", "csv", "-")
+	if code != 0 || strings.Count(out, "\na1,") != 2 {
+		t.Errorf("a repeated id: exit %d\n%s", code, out)
 	}
 }
 

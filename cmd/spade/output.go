@@ -3,6 +3,7 @@ package main
 import (
 	"bufio"
 	"context"
+	"errors"
 	"fmt"
 	"io"
 	"os"
@@ -13,26 +14,43 @@ import (
 
 // writeOutput sends output to standard output for "-" and otherwise to a
 // file written atomically, so that an interrupted run leaves no half file.
+//
+// write may return keepOutput: what it wrote is kept (flushed, or the file
+// committed) and the error it wraps is still the run's.
 func (g *globalOptions) writeOutput(name string, write func(io.Writer) error) error {
-	if name == "-" || name == "" {
-		bw := bufio.NewWriter(g.stdout)
+	var kept error
+	buffered := func(w io.Writer) error {
+		bw := bufio.NewWriter(w)
 		if err := write(bw); err != nil {
-			return err
+			var k keepOutput
+			if !errors.As(err, &k) {
+				return err
+			}
+			kept = k.err
 		}
 		return bw.Flush()
+	}
+	if name == "-" || name == "" {
+		if err := buffered(g.stdout); err != nil {
+			return err
+		}
+		return kept
 	}
 	ctx := g.ctx
 	if ctx == nil {
 		ctx = context.Background()
 	}
-	return features.WriteFileAtomicContext(ctx, name, func(w io.Writer) error {
-		bw := bufio.NewWriter(w)
-		if err := write(bw); err != nil {
-			return err
-		}
-		return bw.Flush()
-	})
+	if err := features.WriteFileAtomicContext(ctx, name, buffered); err != nil {
+		return err
+	}
+	return kept
 }
+
+// keepOutput is an error after which the output written so far is kept.
+type keepOutput struct{ err error }
+
+func (k keepOutput) Error() string { return k.err.Error() }
+func (k keepOutput) Unwrap() error { return k.err }
 
 // checkOutputs refuses, before any work, an output that names one of the
 // inputs: the same file by device and inode when the output exists, or
