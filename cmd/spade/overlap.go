@@ -118,11 +118,12 @@ func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args
 		return err
 	}
 	var probs [][]float64
+	var notes []string
 	switch {
 	case log.DisplayIDOnly:
 		// No readings, no model: the ranges are the digs' own.
 	case opts.model != "":
-		if probs, err = modelProbs(opts.model, kind, log, ds); err != nil {
+		if probs, notes, err = modelProbs(opts.model, kind, log, ds); err != nil {
 			return err
 		}
 	default:
@@ -137,6 +138,7 @@ func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args
 	if err != nil {
 		return err
 	}
+	res.Notes = append(res.Notes, notes...)
 	if log.DisplayIDOnly {
 		res.Notes = append(res.Notes, "This log has display IDs only: the ranges come from your digs alone. Log phase and amplitude at two or more frequencies and overlap also shows what spade resolves in each range.")
 	}
@@ -165,20 +167,24 @@ func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args
 // modelProbs takes each dig's out-of-bag probabilities from the model when
 // the model was trained on it (matched by dig id), and the model's
 // prediction for digs it never saw.
-func modelProbs(path string, kind features.Label, log *features.Log, ds *train.Dataset) ([][]float64, error) {
+func modelProbs(path string, kind features.Label, log *features.Log, ds *train.Dataset) ([][]float64, []string, error) {
 	b, err := train.Load(path)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	if b.Label != kind {
-		return nil, usagef("the model tells %s apart; give --label %s", b.Label, b.Label)
+		return nil, nil, usagef("the model tells %s apart; give --label %s", b.Label, b.Label)
 	}
 	if err := b.Spec.CheckFreqs(log.Freqs); err != nil {
-		return nil, err
+		return nil, nil, err
 	}
-	oob := map[string][]float64{}
+	// A training dig is matched by its id and by its readings: the same
+	// features and the same class. Two logs' ids collide easily (any two
+	// simulated logs, any logs without a dig column), and another log's
+	// dig's out-of-bag figures would be the wrong dig's.
+	train := map[string]int{}
 	for i, id := range b.Training.IDs {
-		oob[id] = b.Training.OutOfBag[i]
+		train[id] = i
 	}
 	// Map the model's classes onto the log's.
 	idx := make([]int, len(b.Classes))
@@ -192,13 +198,21 @@ func modelProbs(path string, kind features.Label, log *features.Log, ds *train.D
 	}
 	probs := make([][]float64, len(log.Digs))
 	var x []float64
+	collided := 0
 	for i := range log.Digs {
-		p, ok := oob[log.Digs[i].ID]
-		if !ok {
-			x, _, err = b.Spec.Extract(&log.Digs[i], x)
-			if err != nil {
-				return nil, &features.ParseError{File: log.Name, Line: log.Digs[i].Line, Err: err}
+		x, _, err = b.Spec.Extract(&log.Digs[i], x)
+		if err != nil {
+			return nil, nil, &features.ParseError{File: log.Name, Line: log.Digs[i].Line, Err: err}
+		}
+		var p []float64
+		if j, ok := train[log.Digs[i].ID]; ok {
+			if sameVector(x, b.Training.Vectors[j]) && b.Classes[b.Training.Y[j]] == ds.Classes[ds.Y[i]] {
+				p = b.Training.OutOfBag[j]
+			} else {
+				collided++
 			}
+		}
+		if p == nil {
 			p = b.Predict(x, nil)
 		}
 		probs[i] = make([]float64, len(ds.Classes))
@@ -208,7 +222,26 @@ func modelProbs(path string, kind features.Label, log *features.Log, ds *train.D
 			}
 		}
 	}
-	return probs, nil
+	var notes []string
+	if collided > 0 {
+		notes = append(notes, fmt.Sprintf("%s share an id with the model's training digs but not their readings or class: the model was trained on another log, so they are judged by its prediction, not by out-of-bag figures of other digs", plural(collided, "dig")))
+	}
+	return probs, notes, nil
+}
+
+// sameVector reports whether two feature vectors are one dig's: equal to
+// a part in 10¹² (a model file keeps its floats exactly; the slack is for
+// a log written back with fewer digits).
+func sameVector(a, b []float64) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	for i := range a {
+		if math.Abs(a[i]-b[i]) > 1e-12*math.Max(1, math.Abs(a[i])) {
+			return false
+		}
+	}
+	return true
 }
 
 // analyseOverlap picks the axis and runs the analysis.

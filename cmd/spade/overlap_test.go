@@ -117,3 +117,38 @@ func TestDisplayIDOnlyLogInOverlapAndEvaluate(t *testing.T) {
 		t.Errorf("train of display IDs: exit %d: %s", code, stderr)
 	}
 }
+
+func TestOverlapModelMatchesDigsByReadingsNotIDAlone(t *testing.T) {
+	// Issue 14: two simulated logs share every id (SR-0001, ...). A model of
+	// one must not lend its out-of-bag figures to the other's digs.
+	dir := t.TempDir()
+	write := func(name, seed string) string {
+		out, _, code := spade(t, "", "simulate", "--n", "300", "--seed", seed)
+		if code != 0 {
+			t.Fatal("simulate")
+		}
+		p := filepath.Join(dir, name)
+		os.WriteFile(p, []byte(out), 0o644)
+		return p
+	}
+	a, b := write("a.csv", "1"), write("b.csv", "2")
+	model := filepath.Join(dir, "a.spade")
+	if _, stderr, code := spade(t, "", "train", a, "-o", model, "--trees", "30", "-q"); code != 0 {
+		t.Fatal(stderr)
+	}
+	var own, other overlap.Result
+	out, _, _ := spade(t, "", "overlap", a, "--model", model, "--format", "json")
+	json.Unmarshal([]byte(out), &own)
+	out, _, _ = spade(t, "", "overlap", b, "--model", model, "--format", "json")
+	json.Unmarshal([]byte(out), &other)
+	if len(own.Notes) != 0 {
+		t.Errorf("the model's own log: notes %q", own.Notes)
+	}
+	if len(other.Notes) != 1 || !strings.Contains(other.Notes[0], "trained on another log") {
+		t.Errorf("another log with the same ids: notes %q", other.Notes)
+	}
+	table, _, _ := spade(t, "", "overlap", b, "--model", model)
+	if !strings.Contains(table, "trained on another log") {
+		t.Error("the table lacks the note")
+	}
+}
