@@ -6,7 +6,6 @@ import (
 	"math/cmplx"
 	"math/rand/v2"
 	"slices"
-	"strings"
 	"time"
 
 	"github.com/spade-detect/spade/features"
@@ -146,7 +145,7 @@ func (o Options) resolve() (*Scenario, []int, *Measurement, error) {
 		for _, s := range Scenarios {
 			names = append(names, s.Name)
 		}
-		return nil, nil, nil, fmt.Errorf("datasets: no scenario %q (have %s)", name, strings.Join(names, ", "))
+		return nil, nil, nil, fmt.Errorf("no scenario %q (have %s)", name, features.ListAnd(names))
 	}
 	freqs := o.Freqs
 	if len(freqs) == 0 {
@@ -155,13 +154,13 @@ func (o Options) resolve() (*Scenario, []int, *Measurement, error) {
 	freqs = slices.Clone(freqs)
 	slices.Sort(freqs)
 	if len(slices.Compact(slices.Clone(freqs))) != len(freqs) {
-		return nil, nil, nil, fmt.Errorf("datasets: a frequency is listed twice in %v", freqs)
+		return nil, nil, nil, fmt.Errorf("a frequency is listed twice in %s", features.HzList(freqs))
 	}
 	if o.Kinds != nil {
 		total := 0
 		for _, k := range o.Kinds {
 			if KindOf(k) == nil {
-				return nil, nil, nil, fmt.Errorf("datasets: no kind %q in the catalogue", k)
+				return nil, nil, nil, fmt.Errorf("no kind %q in the catalogue", k)
 			}
 			for _, n := range sc.Sites {
 				if SiteNamed(n).Mix[k] > 0 {
@@ -170,11 +169,11 @@ func (o Options) resolve() (*Scenario, []int, *Measurement, error) {
 			}
 		}
 		if total == 0 {
-			return nil, nil, nil, fmt.Errorf("datasets: none of the kinds %v is found at the scenario's sites", o.Kinds)
+			return nil, nil, nil, fmt.Errorf("none of the kinds %s is found at the scenario's sites", features.ListAnd(o.Kinds))
 		}
 	}
 	if o.N < 0 {
-		return nil, nil, nil, fmt.Errorf("datasets: --n must be >= 0, got %d", o.N)
+		return nil, nil, nil, fmt.Errorf("--n must be >= 0, got %d", o.N)
 	}
 	m := o.Measurement
 	if m == nil {

@@ -152,7 +152,7 @@ func NewReader(r io.Reader, name string, opts ReadOptions) (*Reader, error) {
 		}
 		rd.src = src
 	default:
-		return nil, fmt.Errorf("features: unknown log format %q (want csv or jsonl)", opts.Format)
+		return nil, fmt.Errorf("unknown log format %q (want csv or jsonl)", opts.Format)
 	}
 	return rd, nil
 }
@@ -314,7 +314,7 @@ func Open(name string) (io.ReadCloser, error) {
 	}
 	f, err := os.Open(name)
 	if err != nil {
-		return nil, fmt.Errorf("features: %w", err)
+		return nil, fmt.Errorf("cannot read %s: %w", name, pathErr(err))
 	}
 	return f, nil
 }

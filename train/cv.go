@@ -138,7 +138,7 @@ func CrossValidate(ctx context.Context, ds *Dataset, o EvalOptions) (*Evaluation
 	}
 	n := ds.Rows()
 	if o.Folds < 2 || o.Folds > n {
-		return nil, fmt.Errorf("train: %d folds for %d digs: need 2 <= folds <= digs", o.Folds, n)
+		return nil, fmt.Errorf("%d folds for %d digs: need 2 <= folds <= digs", o.Folds, n)
 	}
 	fo := o.Forest.withDefaults(len(ds.Names))
 	K := len(ds.Classes)
@@ -334,7 +334,7 @@ func GroupFolds(groups []string, k int) ([]int, int, error) {
 		size[g]++
 	}
 	if len(size) < 2 {
-		return nil, 0, fmt.Errorf("train: leave-group-out needs at least two groups, the log has %d", len(size))
+		return nil, 0, fmt.Errorf("leave-group-out needs at least two groups, the log has %d", len(size))
 	}
 	names := make([]string, 0, len(size))
 	for g := range size {

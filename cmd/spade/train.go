@@ -99,7 +99,7 @@ func runTrain(ctx context.Context, g *globalOptions, opts trainOptions, args []s
 		}
 		g.stdout = g.stderr
 	} else if err := bundle.SaveContext(ctx, opts.output); err != nil {
-		return fmt.Errorf("train: %w", err)
+		return err
 	}
 	if opts.format.json() {
 		enc := json.NewEncoder(g.stdout)
