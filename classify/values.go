@@ -3,6 +3,7 @@ package classify
 import (
 	"errors"
 	"fmt"
+	"io/fs"
 	"math"
 	"os"
 	"slices"
@@ -70,7 +71,11 @@ var ErrValues = errors.New("bad values file")
 func LoadValues(path string) (*Values, error) {
 	data, err := os.ReadFile(path)
 	if err != nil {
-		return nil, fmt.Errorf("classify: %w", err)
+		var pe *fs.PathError
+		if errors.As(err, &pe) {
+			err = pe.Err
+		}
+		return nil, fmt.Errorf("cannot read values file %s: %w", path, err)
 	}
 	return ParseValues(path, string(data))
 }
