@@ -14,10 +14,14 @@ import (
 )
 
 // StaleTemp is how old a temporary file of WriteFileAtomic's must be before
-// a later write to the same path removes it: such a file is left only by a
-// run killed outright (kill -9, a power cut), and an hour is far longer than
-// any write takes, so a concurrent writer's file is never touched.
-const StaleTemp = time.Hour
+// a later write into the same folder removes it: such a file is left only
+// by a run killed outright (kill -9, a power cut), and a day is far longer
+// than any write takes, so a concurrent writer's file is never touched.
+const StaleTemp = 24 * time.Hour
+
+// tempMarker names spade's temporary files (".m.spade.spade-tmp-1x2y3z"),
+// so that the clean-up removes its own and nothing of anyone else's.
+const tempMarker = ".spade-tmp-"
 
 // WriteFileAtomic writes a file through a temporary file in the same folder,
 // synced and then renamed over path, so that a reader (or an interrupted
@@ -33,14 +37,14 @@ func WriteFileAtomic(path string, write func(io.Writer) error) error {
 //
 // The new file takes the mode of the file it replaces; a new path gets
 // 0666 less the umask, as any file the user's shell creates. Temporary
-// files of this path older than StaleTemp are removed first.
+// files of spade's in the folder older than StaleTemp are removed first.
 func WriteFileAtomicContext(ctx context.Context, path string, write func(io.Writer) error) (err error) {
 	dir, base := filepath.Split(path)
 	if dir == "" {
 		dir = "."
 	}
-	prefix := "." + base + ".tmp-"
-	removeStale(dir, prefix)
+	prefix := "." + base + tempMarker
+	removeStale(dir)
 	var mode fs.FileMode
 	keepMode := false
 	if fi, err := os.Stat(path); err == nil && fi.Mode().IsRegular() {
@@ -100,9 +104,9 @@ func (c ctxWriter) Write(p []byte) (int, error) {
 	return c.w.Write(p)
 }
 
-// removeStale removes this path's temporary files left by a killed run.
-func removeStale(dir, prefix string) {
-	matches, _ := filepath.Glob(filepath.Join(dir, globEscape(prefix)+"*"))
+// removeStale removes spade's temporary files in dir left by a killed run.
+func removeStale(dir string) {
+	matches, _ := filepath.Glob(filepath.Join(globEscape(dir), ".*"+tempMarker+"*"))
 	for _, m := range matches {
 		if fi, err := os.Lstat(m); err == nil && fi.Mode().IsRegular() && time.Since(fi.ModTime()) > StaleTemp {
 			os.Remove(m)

@@ -40,16 +40,19 @@ func TestAtomicWriteStaleTempsAndInterrupt(t *testing.T) {
 	dir := t.TempDir()
 	path := filepath.Join(dir, "m.spade")
 	os.WriteFile(path, []byte("the old model"), 0o644)
-	// One temporary file of a run killed two hours ago, one of a writer
-	// running now, and one of another file.
-	stale := filepath.Join(dir, ".m.spade.tmp-killed")
-	live := filepath.Join(dir, ".m.spade.tmp-running")
+	// A temporary file of spade's from a run killed two days ago, and one
+	// of another output in the same folder; one of a writer running now;
+	// and an old file of another program's that looks a little alike.
+	stale := filepath.Join(dir, ".m.spade.spade-tmp-killed")
+	staleOther := filepath.Join(dir, ".out.csv.spade-tmp-killed")
+	live := filepath.Join(dir, ".m.spade.spade-tmp-running")
 	other := filepath.Join(dir, ".other.spade.tmp-killed")
-	for _, f := range []string{stale, live, other} {
+	for _, f := range []string{stale, staleOther, live, other} {
 		os.WriteFile(f, []byte("x"), 0o600)
 	}
 	long := time.Now().Add(-2 * StaleTemp)
 	os.Chtimes(stale, long, long)
+	os.Chtimes(staleOther, long, long)
 	os.Chtimes(other, long, long)
 	// Ctrl-C during the write: it stops at the next write, the old file
 	// stays, and its temporary file goes.
@@ -73,6 +76,6 @@ func TestAtomicWriteStaleTempsAndInterrupt(t *testing.T) {
 	slices.Sort(left)
 	slices.Sort(want)
 	if !slices.Equal(left, want) {
-		t.Errorf("left %v, want %v (the stale one removed, the live one and the other file's kept)", left, want)
+		t.Errorf("left %v, want %v (spade's stale ones removed, the live one and the other program's kept)", left, want)
 	}
 }

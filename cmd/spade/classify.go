@@ -68,7 +68,9 @@ every view. A probability is never a guarantee.
 Inline readings: HZ=PHASE/AMP per frequency, separated by commas or spaces;
 id=N adds the display ID, depth=CM the depth (the ordnance screen then judges
 by apparent size), gHZ=PHASE/AMP a bare-ground reading beside the target.
-Files of any size stream through in constant memory.`,
+Files of any size stream through in constant memory; ids need not be unique.
+On a bad row (without --skip-bad) every reading before it is classified and
+written, in order, then the run stops with the row's error and exit 1.`,
 		Example: "  spade classify --model my.spade new.csv\n" +
 			"  spade classify --model my.spade --values values.toml --format json new.jsonl\n" +
 			"  spade classify --model my.spade -r \"4.3k=111.8/0.10, 9.7k=129.0/0.17, 21.7k=147.5/0.23, 36.3k=163.2/0.26, id=60\"",

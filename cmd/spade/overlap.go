@@ -38,7 +38,7 @@ func (o *overlapOptions) AddFlags(fs *pflag.FlagSet) {
 	o.in.AddFlags(fs)
 	o.format.AddFlags(fs, "table", "json", "csv")
 	o.values.AddFlags(fs)
-	fs.StringVar(&o.model, "model", "", "use this model's out-of-bag probabilities (digs matched by id) instead of cross-validating")
+	fs.StringVar(&o.model, "model", "", "use this model's out-of-bag probabilities instead of cross-validating (digs matched by id, readings and class; a model of another log whose ids collide is refused)")
 	fs.StringVar(&o.by, "by", "", "the single-number axis: display_id or phase_<hz> (default: display_id when the log has it)")
 	fs.Float64Var(&o.bin, "bin", 0, "bin width in the axis's units (default: about 30 digs a bin, rounded)")
 	fs.Float64Var(&o.minTop, "min-top-share", 0.8, "a bin is ambiguous when its top class has less than this share")
@@ -198,7 +198,7 @@ func modelProbs(path string, kind features.Label, log *features.Log, ds *train.D
 	}
 	probs := make([][]float64, len(log.Digs))
 	var x []float64
-	collided := 0
+	collided, matched := 0, 0
 	for i := range log.Digs {
 		x, _, err = b.Spec.Extract(&log.Digs[i], x)
 		if err != nil {
@@ -208,6 +208,7 @@ func modelProbs(path string, kind features.Label, log *features.Log, ds *train.D
 		if j, ok := train[log.Digs[i].ID]; ok {
 			if sameVector(x, b.Training.Vectors[j]) && b.Classes[b.Training.Y[j]] == ds.Classes[ds.Y[i]] {
 				p = b.Training.OutOfBag[j]
+				matched++
 			} else {
 				collided++
 			}
@@ -222,9 +223,12 @@ func modelProbs(path string, kind features.Label, log *features.Log, ds *train.D
 			}
 		}
 	}
-	var notes []string
 	if collided > 0 {
-		notes = append(notes, fmt.Sprintf("%s share an id with the model's training digs but not their readings or class: the model was trained on another log, so they are judged by its prediction, not by out-of-bag figures of other digs", plural(collided, "dig")))
+		return nil, nil, fmt.Errorf("--model %s was trained on another log: %s of %s share an id with its training digs but not their readings or class; train a model on this log, or leave out --model to cross-validate", path, plural(collided, "dig"), log.Name)
+	}
+	var notes []string
+	if unseen := len(log.Digs) - matched; unseen > 0 {
+		notes = append(notes, fmt.Sprintf("%s of this log are not in the model's training digs: they are judged by the model's prediction, held out by construction", plural(unseen, "dig")))
 	}
 	return probs, notes, nil
 }

@@ -120,7 +120,7 @@ func TestDisplayIDOnlyLogInOverlapAndEvaluate(t *testing.T) {
 
 func TestOverlapModelMatchesDigsByReadingsNotIDAlone(t *testing.T) {
 	// Issue 14: two simulated logs share every id (SR-0001, ...). A model of
-	// one must not lend its out-of-bag figures to the other's digs.
+	// one must not lend its out-of-bag figures to the other's digs: refused.
 	dir := t.TempDir()
 	write := func(name, seed string) string {
 		out, _, code := spade(t, "", "simulate", "--n", "300", "--seed", seed)
@@ -136,19 +136,23 @@ func TestOverlapModelMatchesDigsByReadingsNotIDAlone(t *testing.T) {
 	if _, stderr, code := spade(t, "", "train", a, "-o", model, "--trees", "30", "-q"); code != 0 {
 		t.Fatal(stderr)
 	}
-	var own, other overlap.Result
-	out, _, _ := spade(t, "", "overlap", a, "--model", model, "--format", "json")
-	json.Unmarshal([]byte(out), &own)
-	out, _, _ = spade(t, "", "overlap", b, "--model", model, "--format", "json")
-	json.Unmarshal([]byte(out), &other)
-	if len(own.Notes) != 0 {
-		t.Errorf("the model's own log: notes %q", own.Notes)
+	var own overlap.Result
+	out, _, code := spade(t, "", "overlap", a, "--model", model, "--format", "json")
+	if code != 0 || json.Unmarshal([]byte(out), &own) != nil || len(own.Notes) != 0 {
+		t.Errorf("the model's own log: exit %d, notes %q", code, own.Notes)
 	}
-	if len(other.Notes) != 1 || !strings.Contains(other.Notes[0], "trained on another log") {
-		t.Errorf("another log with the same ids: notes %q", other.Notes)
+	_, stderr, code := spade(t, "", "overlap", b, "--model", model, "--format", "json")
+	if code != exitError || !strings.Contains(stderr, "was trained on another log: ") || !strings.Contains(stderr, " digs of "+b+" share an id") {
+		t.Errorf("another log with the same ids: exit %d, %s", code, stderr)
 	}
-	table, _, _ := spade(t, "", "overlap", b, "--model", model)
-	if !strings.Contains(table, "trained on another log") {
-		t.Error("the table lacks the note")
+	// Digs the model never saw, under ids of their own, are judged by its
+	// prediction, and the result says how many.
+	c := filepath.Join(dir, "c.csv")
+	raw, _ := os.ReadFile(b)
+	os.WriteFile(c, []byte(strings.NewReplacer("\nSR-", "\nnew-SR-", "\nHF-", "\nnew-HF-").Replace(string(raw))), 0o644)
+	var fresh overlap.Result
+	out, stderr, code = spade(t, "", "overlap", c, "--model", model, "--format", "json")
+	if code != 0 || json.Unmarshal([]byte(out), &fresh) != nil || len(fresh.Notes) != 1 || !strings.Contains(fresh.Notes[0], "are not in the model's training digs") {
+		t.Errorf("unseen digs: exit %d, notes %q, %s", code, fresh.Notes, stderr)
 	}
 }
