@@ -8,11 +8,9 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"runtime"
 	"slices"
 	"strconv"
 	"strings"
-	"sync"
 
 	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/features"
@@ -123,7 +121,7 @@ func runClassify(ctx context.Context, g *globalOptions, opts classifyOptions, ar
 	defer bar.done()
 	return g.writeOutput(opts.output, func(w io.Writer) error {
 		out := newResultWriter(w, opts.format.value, bundle.Classes, opts.top, c.Warnings())
-		err := classifyStream(ctx, c, next, name, func(r *classify.Result) error {
+		err := classify.Stream(ctx, c, next, name, func(r *classify.Result) error {
 			bar.step(1)
 			return out.write(r)
 		})
@@ -144,80 +142,6 @@ func runClassify(ctx context.Context, g *globalOptions, opts classifyOptions, ar
 		}
 		return nil
 	})
-}
-
-// classifyBatch is how many readings are read before they are classified
-// in parallel: enough to keep every core busy, few enough that memory stays
-// constant whatever the file's size.
-const classifyBatch = 512
-
-// classifyStream classifies readings in batches on every core and hands the
-// results to emit in input order.
-func classifyStream(ctx context.Context, c *classify.Classifier, next func() (features.Dig, error), name string, emit func(*classify.Result) error) error {
-	workers := runtime.GOMAXPROCS(0)
-	clones := []*classify.Classifier{c}
-	for len(clones) < workers {
-		clones = append(clones, c.Clone())
-	}
-	batch := make([]features.Dig, 0, classifyBatch)
-	results := make([]*classify.Result, classifyBatch)
-	errs := make([]error, classifyBatch)
-	for done := false; !done; {
-		if err := ctx.Err(); err != nil {
-			return err
-		}
-		batch = batch[:0]
-		var readErr error
-		for len(batch) < classifyBatch {
-			d, err := next()
-			if errors.Is(err, io.EOF) {
-				done = true
-				break
-			}
-			if err != nil {
-				// The readings before a bad row are classified and handed
-				// on first; then the row's error.
-				readErr, done = err, true
-				break
-			}
-			batch = append(batch, d)
-		}
-		var wg sync.WaitGroup
-		for wi, cl := range clones {
-			wg.Add(1)
-			go func() {
-				defer wg.Done()
-				i := wi
-				// A panic in a worker is turned into this reading's error,
-				// reported with its line like any other: never a stack trace.
-				defer func() {
-					if r := recover(); r != nil && i < len(batch) {
-						errs[i] = fmt.Errorf("internal error classifying this reading: %v (please report it)", r)
-					}
-				}()
-				for ; i < len(batch); i += len(clones) {
-					results[i], errs[i] = cl.Classify(&batch[i])
-				}
-			}()
-		}
-		wg.Wait()
-		for i := range batch {
-			if errs[i] != nil {
-				var pe *features.ParseError
-				if errors.As(errs[i], &pe) {
-					return errs[i]
-				}
-				return &features.ParseError{File: name, Line: batch[i].Line, Err: errs[i]}
-			}
-			if err := emit(results[i]); err != nil {
-				return err
-			}
-		}
-		if readErr != nil {
-			return readErr
-		}
-	}
-	return nil
 }
 
 // readingSource yields the readings one at a time.

@@ -1,0 +1,90 @@
+package classify
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"runtime"
+	"sync"
+
+	"github.com/spade-detect/spade/features"
+)
+
+// StreamBatch is how many readings are read before they are classified
+// in parallel: enough to keep every core busy, few enough that memory stays
+// constant whatever the file's size.
+const StreamBatch = 512
+
+// Stream classifies readings in batches on every core and hands the
+// results to emit in input order. next gives the readings, io.EOF after the
+// last; name is the source's name for errors. A reading that cannot be
+// classified stops the stream with a *features.ParseError at its line, and
+// a reading that next refuses stops it after every reading before it has
+// been emitted. A panic in a worker becomes that reading's error.
+func Stream(ctx context.Context, c *Classifier, next func() (features.Dig, error), name string, emit func(*Result) error) error {
+	workers := runtime.GOMAXPROCS(0)
+	clones := []*Classifier{c}
+	for len(clones) < workers {
+		clones = append(clones, c.Clone())
+	}
+	batch := make([]features.Dig, 0, StreamBatch)
+	results := make([]*Result, StreamBatch)
+	errs := make([]error, StreamBatch)
+	for done := false; !done; {
+		if err := ctx.Err(); err != nil {
+			return err
+		}
+		batch = batch[:0]
+		var readErr error
+		for len(batch) < StreamBatch {
+			d, err := next()
+			if errors.Is(err, io.EOF) {
+				done = true
+				break
+			}
+			if err != nil {
+				// The readings before a bad row are classified and handed
+				// on first; then the row's error.
+				readErr, done = err, true
+				break
+			}
+			batch = append(batch, d)
+		}
+		var wg sync.WaitGroup
+		for wi, cl := range clones {
+			wg.Add(1)
+			go func() {
+				defer wg.Done()
+				i := wi
+				// A panic in a worker is turned into this reading's error,
+				// reported with its line like any other: never a stack trace.
+				defer func() {
+					if r := recover(); r != nil && i < len(batch) {
+						errs[i] = fmt.Errorf("internal error classifying this reading: %v (please report it)", r)
+					}
+				}()
+				for ; i < len(batch); i += len(clones) {
+					results[i], errs[i] = cl.Classify(&batch[i])
+				}
+			}()
+		}
+		wg.Wait()
+		for i := range batch {
+			if errs[i] != nil {
+				var pe *features.ParseError
+				if errors.As(errs[i], &pe) {
+					return errs[i]
+				}
+				return &features.ParseError{File: name, Line: batch[i].Line, Err: errs[i]}
+			}
+			if err := emit(results[i]); err != nil {
+				return err
+			}
+		}
+		if readErr != nil {
+			return readErr
+		}
+	}
+	return nil
+}
