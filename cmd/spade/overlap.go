@@ -4,6 +4,7 @@ import (
 	"context"
 	"encoding/csv"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -164,9 +165,8 @@ func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args
 	})
 }
 
-// modelProbs takes each dig's out-of-bag probabilities from the model when
-// the model was trained on it (matched by dig id), and the model's
-// prediction for digs it never saw.
+// modelProbs takes the digs' held-out probabilities from a model file
+// (overlap.HeldOut), after the checks a command line needs.
 func modelProbs(path string, kind features.Label, log *features.Log, ds *train.Dataset) ([][]float64, []string, error) {
 	b, err := train.Load(path)
 	if err != nil {
@@ -175,77 +175,11 @@ func modelProbs(path string, kind features.Label, log *features.Log, ds *train.D
 	if b.Label != kind {
 		return nil, nil, usagef("the model tells %s apart; give --label %s", b.Label, b.Label)
 	}
-	if err := b.Spec.CheckFreqs(log.Freqs); err != nil {
-		return nil, nil, err
+	probs, notes, err := overlap.HeldOut(b, log, ds)
+	if errors.Is(err, overlap.ErrOtherLog) {
+		return nil, nil, fmt.Errorf("--model %s: %w; train a model on this log, or leave out --model to cross-validate", path, err)
 	}
-	// A training dig is matched by its id and by its readings: the same
-	// features and the same class. Two logs' ids collide easily (any two
-	// simulated logs, any logs without a dig column), and another log's
-	// dig's out-of-bag figures would be the wrong dig's.
-	train := map[string]int{}
-	for i, id := range b.Training.IDs {
-		train[id] = i
-	}
-	// Map the model's classes onto the log's.
-	idx := make([]int, len(b.Classes))
-	for k, c := range b.Classes {
-		idx[k] = -1
-		for j, d := range ds.Classes {
-			if c == d {
-				idx[k] = j
-			}
-		}
-	}
-	probs := make([][]float64, len(log.Digs))
-	var x []float64
-	collided, matched := 0, 0
-	for i := range log.Digs {
-		x, _, err = b.Spec.Extract(&log.Digs[i], x)
-		if err != nil {
-			return nil, nil, &features.ParseError{File: log.Name, Line: log.Digs[i].Line, Err: err}
-		}
-		var p []float64
-		if j, ok := train[log.Digs[i].ID]; ok {
-			if sameVector(x, b.Training.Vectors[j]) && b.Classes[b.Training.Y[j]] == ds.Classes[ds.Y[i]] {
-				p = b.Training.OutOfBag[j]
-				matched++
-			} else {
-				collided++
-			}
-		}
-		if p == nil {
-			p = b.Predict(x, nil)
-		}
-		probs[i] = make([]float64, len(ds.Classes))
-		for k, v := range p {
-			if idx[k] >= 0 {
-				probs[i][idx[k]] = v
-			}
-		}
-	}
-	if collided > 0 {
-		return nil, nil, fmt.Errorf("--model %s was trained on another log: %s of %s share an id with its training digs but not their readings or class; train a model on this log, or leave out --model to cross-validate", path, plural(collided, "dig"), log.Name)
-	}
-	var notes []string
-	if unseen := len(log.Digs) - matched; unseen > 0 {
-		notes = append(notes, fmt.Sprintf("%s of this log are not in the model's training digs: they are judged by the model's prediction, held out by construction", plural(unseen, "dig")))
-	}
-	return probs, notes, nil
-}
-
-// sameVector reports whether two feature vectors are one dig's: equal to
-// a part in 10¹² (a model file keeps its floats exactly; the slack is for
-// a log written back with fewer digits).
-func sameVector(a, b []float64) bool {
-	if len(a) != len(b) {
-		return false
-	}
-	for i := range a {
-		if math.Abs(a[i]-b[i]) > 1e-12*math.Max(1, math.Abs(a[i])) {
-			return false
-		}
-	}
-	return true
+	return probs, notes, err
 }
 
 // analyseOverlap picks the axis and runs the analysis.
