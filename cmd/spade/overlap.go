@@ -221,11 +221,13 @@ func analyseOverlap(log *features.Log, ds *train.Dataset, probs [][]float64, val
 	default:
 		return nil, "", usagef("--by: want display_id or phase_<hz>, got %q", by)
 	}
-	if vals == nil {
-		vals = classify.DefaultValues()
-		vals.CostPerDig = math.Inf(1) // no keepers unless the user names them
+	if vals != nil {
+		o.Keepers, o.Hazards = vals.Split(ds.Classes)
+	} else {
+		// No values file: no keepers unless the user names them, and the
+		// default hazards (any shape "ordnance") still marked.
+		_, o.Hazards = classify.DefaultValues().Split(ds.Classes)
 	}
-	o.Keepers, o.Hazards = vals.Split(ds.Classes)
 	res, err := overlap.Analyse(by, axis, ds.Classes, ds.Y, probs, o)
 	return res, unit, err
 }
