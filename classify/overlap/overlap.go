@@ -7,6 +7,7 @@ import (
 	"sort"
 
 	"github.com/spade-detect/spade/train"
+	"gonum.org/v1/gonum/stat"
 )
 
 // Options for Analyse.
@@ -174,15 +175,16 @@ func summarise(counts []int, classes []string) Bin {
 	for _, c := range counts {
 		bin.Digs += c
 	}
+	shares := make([]float64, 0, len(counts))
 	for k, c := range counts {
 		if c > 0 {
 			s := float64(c) / float64(bin.Digs)
 			bin.Classes = append(bin.Classes, Share{Class: classes[k], Share: s, Digs: c})
-			bin.Entropy -= s * math.Log2(s)
+			shares = append(shares, s)
 		}
 	}
 	sort.SliceStable(bin.Classes, func(i, j int) bool { return bin.Classes[i].Digs > bin.Classes[j].Digs })
-	bin.Entropy = math.Abs(bin.Entropy) // -0 for a pure bin
+	bin.Entropy = math.Abs(bits(shares)) // -0 for a pure bin
 	return bin
 }
 
@@ -240,15 +242,12 @@ func resolve(start, end int, bins []*Bin, classes []string, keeper, hazard []boo
 		}
 		p := probs[i]
 		top := 0
-		var h float64
 		for k, v := range p {
 			if v > p[top] {
 				top = k
 			}
-			if v > 0 {
-				h -= v * math.Log2(v)
-			}
 		}
+		h := bits(p)
 		if int32(top) == y[i] {
 			res.ModelAccuracy++
 		}
@@ -289,3 +288,7 @@ func niceWidth(raw float64, integral bool) float64 {
 	}
 	return w
 }
+
+// bits is Shannon's entropy in bits, −Σ p log₂ p (Shannon 1948): gonum's
+// stat.Entropy, in nats, over ln 2.
+func bits(p []float64) float64 { return stat.Entropy(p) / math.Ln2 }
