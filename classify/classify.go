@@ -143,13 +143,17 @@ type HazardCheck struct {
 	Note       string  `json:"note,omitempty"`
 }
 
+// Verdict is the dig decision, one of the constants below; its JSON and
+// CSV form is the words themselves.
+type Verdict string
+
 // The verdicts.
 const (
-	VerdictDig      = "dig"
-	VerdictSkip     = "skip"
-	VerdictUnsure   = "unsure"
-	VerdictDoNotDig = "do not dig"
-	VerdictNone     = "no verdict"
+	VerdictDig      Verdict = "dig"
+	VerdictSkip     Verdict = "skip"
+	VerdictUnsure   Verdict = "unsure"
+	VerdictDoNotDig Verdict = "do not dig"
+	VerdictNone     Verdict = "no verdict"
 )
 
 // Learn is uncertainty sampling (Lewis & Gale, "A sequential algorithm for
@@ -172,7 +176,7 @@ const NoValuesNote = "no values file, so no dig verdict: give --values FILE with
 // Decision is the dig decision by the user's values.
 type Decision struct {
 	ExpectedValue float64 `json:"expected_value"` // Σ p·value - cost per dig
-	Verdict       string  `json:"verdict"`        // "dig", "skip", "unsure", "do not dig" or "no verdict"
+	Verdict       Verdict `json:"verdict"`        // "dig", "skip", "unsure", "do not dig" or "no verdict"
 	Note          string  `json:"note,omitempty"`
 }
 

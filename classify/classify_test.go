@@ -389,7 +389,7 @@ func TestNoProbabilityIsExactlyZeroOrOne(t *testing.T) {
 func TestNoValuesNoVerdictButTheHazardCheck(t *testing.T) {
 	b, _ := demoModel(t)
 	c := New(b, nil)
-	seen := map[string]bool{}
+	seen := map[Verdict]bool{}
 	for _, d := range demoReadings(t) {
 		r, _ := c.Classify(&d)
 		seen[r.Decision.Verdict] = true

@@ -238,7 +238,7 @@ func (o *resultWriter) write(r *classify.Result) error {
 		if !h.Available {
 			check = "unavailable"
 		}
-		rec := []string{r.Dig, h.Tier, check, ff(h.Probability), ff(h.History), ff(h.Screen), r.Top.Class, ff(r.Top.Probability), r.Decision.Verdict, ff(r.Decision.ExpectedValue),
+		rec := []string{r.Dig, h.Tier, check, ff(h.Probability), ff(h.History), ff(h.Screen), r.Top.Class, ff(r.Top.Probability), string(r.Decision.Verdict), ff(r.Decision.ExpectedValue),
 			ff(r.Novelty.Percentile), strconv.FormatBool(r.Novelty.Unfamiliar), strconv.FormatBool(r.Learn.Worth)}
 		if len(r.Neighbours) > 0 {
 			rec = append(rec, r.Neighbours[0].Dig, r.Neighbours[0].Class, ff(r.Neighbours[0].Distance))
