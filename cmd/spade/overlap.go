@@ -184,42 +184,9 @@ func modelProbs(path string, kind features.Label, log *features.Log, ds *train.D
 
 // analyseOverlap picks the axis and runs the analysis.
 func analyseOverlap(log *features.Log, ds *train.Dataset, probs [][]float64, vals *classify.Values, by string, o overlap.Options) (*overlap.Result, string, error) {
-	if by == "" {
-		by = "display_id"
-		if !log.HasDisplayID {
-			by = fmt.Sprintf("phase_%d", log.Freqs[len(log.Freqs)/2])
-		}
-	}
-	axis := make([]float64, len(log.Digs))
-	var unit string
-	switch {
-	case by == "display_id":
-		if !log.HasDisplayID {
-			return nil, "", usagef("--by display_id: the log has no display_id column (or some rows lack it); use --by phase_<hz>")
-		}
-		for i := range log.Digs {
-			axis[i] = log.Digs[i].DisplayID
-		}
-		unit = "display ID"
-	case strings.HasPrefix(by, "phase_"):
-		hz, err := features.ParseHz(strings.TrimPrefix(by, "phase_"))
-		j := -1
-		for k, f := range log.Freqs {
-			if f == hz {
-				j = k
-			}
-		}
-		if err != nil || j < 0 {
-			return nil, "", usagef("--by %s: the log's frequencies are %s", by, features.HzList(log.Freqs))
-		}
-		by = fmt.Sprintf("phase_%d", hz)
-		// The phase as the instrument gave it: the single number a user sees.
-		for i := range log.Digs {
-			axis[i] = log.Digs[i].Readings[j].Phase()
-		}
-		unit = fmt.Sprintf("phase at %d Hz (degrees)", hz)
-	default:
-		return nil, "", usagef("--by: want display_id or phase_<hz>, got %q", by)
+	axis, by, unit, err := overlap.Axis(log, by)
+	if err != nil {
+		return nil, "", usagef("--by: %w", err)
 	}
 	if vals != nil {
 		o.Keepers, o.Hazards = vals.Split(ds.Classes)
