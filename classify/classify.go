@@ -40,13 +40,17 @@ type Classifier struct {
 }
 
 // New prepares a classifier: the whitened training space and the training
-// digs' own novelty scores (leave-one-out, at most 2000 of them). values nil means DefaultValues.
+// digs' own novelty scores (leave-one-out, at most 2000 of them; taken from
+// the model when it stores them, see ReferenceScores). values nil means DefaultValues.
 func New(b *train.Bundle, values *Values) *Classifier {
 	if values == nil {
 		values = DefaultValues()
 	}
 	c := &Classifier{bundle: b, values: values, space: newSpace(b.Training.Vectors)}
-	c.reference = c.space.referenceScores()
+	c.reference = b.NoveltyReference
+	if c.reference == nil {
+		c.reference = c.space.referenceScores()
+	}
 	for _, cl := range b.Classes {
 		c.hazard = append(c.hazard, values.IsHazard(cl))
 		c.worth = append(c.worth, values.ValueOf(cl))
@@ -390,4 +394,18 @@ func (r *Result) MarshalJSON() ([]byte, error) {
 		Probabilities probabilityObject `json:"probabilities"`
 		*plain
 	}{r.Dig, probabilityObject(r.Ranked), (*plain)(r)})
+}
+
+// ReferenceScores are the training digs' own novelty scores (leave-one-out,
+// at most 2000 of them, sorted) that New compares each reading with. A
+// command that makes a model stores them in Bundle.NoveltyReference, so
+// that loading the model does not compute them again: at 100,000 digs that
+// took most of classify's start-up.
+func ReferenceScores(b *train.Bundle) []float64 {
+	s := newSpace(b.Training.Vectors)
+	ref := s.referenceScores()
+	if ref == nil {
+		ref = []float64{} // stored as such: "none" is not "not computed"
+	}
+	return ref
 }

@@ -7,7 +7,9 @@ import (
 	"reflect"
 	"testing"
 
+	"github.com/spade-detect/spade/datasets"
 	"github.com/spade-detect/spade/features"
+	"github.com/spade-detect/spade/train"
 )
 
 // TestStreamInOrderAndStopsAtABadRow: Stream's parallel batches give, in
@@ -64,4 +66,59 @@ func TestStreamInOrderAndStopsAtABadRow(t *testing.T) {
 	if err := Stream(ctx, c, source(-1), "r.csv", func(*Result) error { return nil }); !errors.Is(err, context.Canceled) {
 		t.Errorf("cancelled: %v", err)
 	}
+}
+
+// TestStoredNoveltyReference: a model that stores its novelty reference
+// (as spade train writes it) gives the very results of one that does not,
+// and the reference survives the model file exactly.
+func TestStoredNoveltyReference(t *testing.T) {
+	b, _ := demoModel(t)
+	plain := New(b, nil)
+	stored := *b
+	stored.NoveltyReference = ReferenceScores(b)
+	data, err := stored.Marshal()
+	if err != nil {
+		t.Fatal(err)
+	}
+	back, err := train.Unmarshal(data)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !reflect.DeepEqual(back.NoveltyReference, plain.reference) {
+		t.Fatalf("stored reference of %d scores differs from the computed one of %d", len(back.NoveltyReference), len(plain.reference))
+	}
+	fast := New(back, nil)
+	for _, d := range demoReadings(t) {
+		a, _ := plain.Classify(&d)
+		b, _ := fast.Classify(&d)
+		if !reflect.DeepEqual(a, b) {
+			t.Errorf("%s: %+v against %+v", d.ID, a.Novelty, b.Novelty)
+		}
+	}
+}
+
+// BenchmarkNewClassifier: classify's start-up with a 5,000-dig model, with
+// the novelty reference stored in the model and computed at load.
+func BenchmarkNewClassifier(b *testing.B) {
+	digs, _, err := datasets.Simulate(datasets.Options{N: 5000, Seed: 42})
+	if err != nil {
+		b.Fatal(err)
+	}
+	log := &features.Log{Name: "sim", Freqs: datasets.DefaultFreqs, Digs: digs, HasDisplayID: true}
+	bundle, err := train.TrainBundle(context.Background(), log, features.NewSpec(log.Freqs, true), train.TrainOptions{NoScreen: true, Forest: train.Options{Trees: 20, Seed: 1}})
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.Run("reference=computed", func(b *testing.B) {
+		for range b.N {
+			New(bundle, nil)
+		}
+	})
+	stored := *bundle
+	stored.NoveltyReference = ReferenceScores(bundle)
+	b.Run("reference=stored", func(b *testing.B) {
+		for range b.N {
+			New(&stored, nil)
+		}
+	})
 }

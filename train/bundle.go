@@ -105,7 +105,12 @@ type Bundle struct {
 	// Screen is the ordnance screen; nil in a format 1 model, or where the
 	// history could not carry one.
 	Screen *Screen `json:"screen,omitempty"`
-	Forest *Forest `json:"-"`
+	// NoveltyReference is the training digs' own novelty scores, sorted
+	// (classify.ReferenceScores), computed once when the model is made so
+	// that loading it need not; nil in an older model, which classify then
+	// computes them for.
+	NoveltyReference []float64 `json:"novelty_reference,omitempty"`
+	Forest           *Forest   `json:"-"`
 	// Format is the format version the bundle was read from.
 	Format int `json:"-"`
 }

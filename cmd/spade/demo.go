@@ -103,6 +103,9 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 	if err == nil {
 		err = bundle.AddScreen(ctx, log, train.ScreenOptions{Seed: opts.seed, Progress: step})
 	}
+	if err == nil {
+		bundle.NoveltyReference = classify.ReferenceScores(bundle)
+	}
 	bar.done()
 	if err != nil {
 		return err
