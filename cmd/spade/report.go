@@ -88,12 +88,7 @@ func writeEvaluation(w io.Writer, ev *train.Evaluation, label string) {
 	if ev.Screen != nil {
 		writeScreenEvaluation(w, ev.Screen)
 	}
-	fmt.Fprintf(w, "\nPer class (spade)%19s %9s %7s %6s\n", "digs", "precision", "recall", "F1")
-	for _, c := range ev.Classes {
-		pc := m.PerClass[c]
-		fmt.Fprintf(w, "  %-32s %5d %9.2f %7.2f %6.2f\n", trunc(c, 32), pc.Support, pc.Precision, pc.Recall, pc.F1)
-	}
-	writeConfusions(w, "spade", ev.Classes, m.Confusion)
+	writePerClass(w, "spade", ev.Classes, m)
 	fmt.Fprintf(w, "\nReliability (spade): when the top class has probability p, how often it is right\n")
 	fmt.Fprintf(w, "  %-10s %6s %8s %8s\n", "p", "digs", "mean p", "right")
 	for _, r := range m.Reliability {
@@ -125,14 +120,24 @@ func writeBaselineEvaluation(w io.Writer, ev *train.Evaluation) {
 			fmt.Fprintf(w, "  keeping %3.0f%% of keepers: %s skip, lost %d of %d\n", 100*p.Keep, pct(p.TrashSkipped), p.KeepersLost, p.Keepers)
 		}
 	}
-	fmt.Fprintf(w, "\nPer class (one number)%14s %9s %7s %6s\n", "digs", "precision", "recall", "F1")
-	for _, c := range ev.Classes {
-		pc := b.PerClass[c]
-		fmt.Fprintf(w, "  %-32s %5d %9.2f %7.2f %6.2f\n", trunc(c, 32), pc.Support, pc.Precision, pc.Recall, pc.F1)
-	}
-	writeConfusions(w, "the one number", ev.Classes, b.Confusion)
+	writePerClass(w, "one number", ev.Classes, b)
 	fmt.Fprintf(w, "\nOrdnance screen\n")
 	fmt.Fprint(w, wrap("HAZARD CHECK UNAVAILABLE: a log of display IDs only carries no ordnance screen, and the one number cannot warn of munitions your history lacks.", 78, "  "))
+}
+
+// writePerClass is the per-class table and the commonest mistakes of one
+// learner ("spade", or "one number" for the baseline).
+func writePerClass(w io.Writer, who string, classes []string, m train.Metrics) {
+	title := "Per class (" + who + ")"
+	fmt.Fprintf(w, "\n%s%*s %9s %7s %6s\n", title, 36-len(title), "digs", "precision", "recall", "F1")
+	for _, c := range classes {
+		pc := m.PerClass[c]
+		fmt.Fprintf(w, "  %-32s %5d %9.2f %7.2f %6.2f\n", trunc(c, 32), pc.Support, pc.Precision, pc.Recall, pc.F1)
+	}
+	if who == "one number" {
+		who = "the one number"
+	}
+	writeConfusions(w, who, classes, m.Confusion)
 }
 
 // writeScreenEvaluation reports the ordnance screen: on spade's simulated
