@@ -240,3 +240,20 @@ func TestDisplayIDOnlyLog(t *testing.T) {
 		t.Errorf("a log with readings: %v %+v", err, l)
 	}
 }
+
+func TestHashIDSurvivesCSV(t *testing.T) {
+	// Found by FuzzReadJSONL: a JSON Lines dig id "#0" written to CSV as
+	// the first field read back as a comment line, and the dig was lost.
+	log, err := ReadLog(strings.NewReader(`{"dig":"#0","material":"iron","shape":"nail","readings":[{"hz":5000,"phase":20,"amp":0.5}]}`+"\n"), "h.jsonl", ReadOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var b strings.Builder
+	if err := WriteCSV(&b, log.Freqs, log.Digs, WriteOptions{Labels: true, PhaseDecimals: -1, AmpDigits: -1}); err != nil {
+		t.Fatal(err)
+	}
+	again, err := ReadLog(strings.NewReader(b.String()), "h.csv", ReadOptions{})
+	if err != nil || len(again.Digs) != 1 || again.Digs[0].ID != "#0" {
+		t.Errorf("re-read: %v\n%s", err, b.String())
+	}
+}

@@ -27,7 +27,7 @@ func WriteFeatureTable(w io.Writer, log *Log, spec *FeatureSpec) error {
 		for j, x := range v {
 			rec[3+j] = strconv.FormatFloat(x, 'g', 10, 64)
 		}
-		if err := cw.Write(rec); err != nil {
+		if err := writeRecord(cw, w, rec); err != nil {
 			return err
 		}
 	}

@@ -6,6 +6,7 @@ import (
 	"io"
 	"math"
 	"strconv"
+	"strings"
 )
 
 // WriteOptions says how a log is written.
@@ -85,12 +86,29 @@ func WriteCSV(w io.Writer, freqs []int, digs []Dig, opts WriteOptions) error {
 		if opts.Notes != nil {
 			rec = append(rec, opts.Notes[i])
 		}
-		if err := cw.Write(rec); err != nil {
+		if err := writeRecord(cw, w, rec); err != nil {
 			return err
 		}
 	}
 	cw.Flush()
 	return cw.Error()
+}
+
+// writeRecord writes one row. A first field that starts with "#" (a dig id
+// from JSON Lines, say) is quoted by hand, as encoding/csv does not quote
+// it: unquoted, the line would read back as a comment and the dig be lost.
+func writeRecord(cw *csv.Writer, w io.Writer, rec []string) error {
+	if len(rec) < 2 || !strings.HasPrefix(rec[0], "#") {
+		return cw.Write(rec)
+	}
+	cw.Flush()
+	if err := cw.Error(); err != nil {
+		return err
+	}
+	if _, err := io.WriteString(w, `"`+strings.ReplaceAll(rec[0], `"`, `""`)+`",`); err != nil {
+		return err
+	}
+	return cw.Write(rec[1:])
 }
 
 func (o WriteOptions) appendReadings(rec []string, rs []Reading) []string {
