@@ -39,17 +39,30 @@ func WriteFileAtomic(path string, write func(io.Writer) error) error {
 // 0666 less the umask, as any file the user's shell creates. Temporary
 // files of spade's in the folder older than StaleTemp are removed first.
 func WriteFileAtomicContext(ctx context.Context, path string, write func(io.Writer) error) (err error) {
+	var mode fs.FileMode
+	keepMode := false
+	if fi, err := os.Stat(path); err == nil {
+		switch {
+		case fi.IsDir():
+			return fmt.Errorf("cannot write %s: it is a folder", path)
+		case !fi.Mode().IsRegular():
+			// A device or a pipe (/dev/null, /dev/stdout, a FIFO): written
+			// in place, as renaming over it would replace the device.
+			return writeInPlace(ctx, path, write)
+		}
+		mode, keepMode = fi.Mode().Perm(), true
+		// Through a symbolic link, the file it points to is replaced and
+		// the link kept.
+		if real, err := filepath.EvalSymlinks(path); err == nil {
+			path = real
+		}
+	}
 	dir, base := filepath.Split(path)
 	if dir == "" {
 		dir = "."
 	}
 	prefix := "." + base + tempMarker
 	removeStale(dir)
-	var mode fs.FileMode
-	keepMode := false
-	if fi, err := os.Stat(path); err == nil && fi.Mode().IsRegular() {
-		mode, keepMode = fi.Mode().Perm(), true
-	}
 	// OpenFile with 0666 lets the kernel apply the umask.
 	var tmp *os.File
 	for range 100 {
@@ -86,6 +99,23 @@ func WriteFileAtomicContext(ctx context.Context, path string, write func(io.Writ
 		}
 	}
 	if err = os.Rename(tmp.Name(), path); err != nil {
+		return fmt.Errorf("cannot write %s: %w", path, pathErr(err))
+	}
+	return nil
+}
+
+// writeInPlace writes to a device or a pipe that exists, without a
+// temporary file.
+func writeInPlace(ctx context.Context, path string, write func(io.Writer) error) error {
+	f, err := os.OpenFile(path, os.O_WRONLY, 0)
+	if err != nil {
+		return fmt.Errorf("cannot write %s: %w", path, pathErr(err))
+	}
+	if err := write(ctxWriter{ctx, f}); err != nil {
+		f.Close()
+		return err
+	}
+	if err := f.Close(); err != nil {
 		return fmt.Errorf("cannot write %s: %w", path, pathErr(err))
 	}
 	return nil

@@ -79,3 +79,34 @@ func TestAtomicWriteStaleTempsAndInterrupt(t *testing.T) {
 		t.Errorf("left %v, want %v (spade's stale ones removed, the live one and the other program's kept)", left, want)
 	}
 }
+
+func TestAtomicWriteToDevicesAndLinks(t *testing.T) {
+	// -o /dev/null once renamed a regular file over the device (as root).
+	// A device is written in place; a symbolic link keeps pointing at the
+	// file, which is replaced; a folder is refused.
+	if err := WriteFileAtomic(os.DevNull, func(w io.Writer) error { _, err := io.WriteString(w, "gone\n"); return err }); err != nil {
+		t.Fatal(err)
+	}
+	if fi, err := os.Stat(os.DevNull); err != nil || fi.Mode()&os.ModeDevice == 0 {
+		t.Fatalf("%s is no longer a device: %v %v", os.DevNull, fi.Mode(), err)
+	}
+	dir := t.TempDir()
+	target := filepath.Join(dir, "real.csv")
+	link := filepath.Join(dir, "link.csv")
+	os.WriteFile(target, []byte("old\n"), 0o644)
+	if err := os.Symlink(target, link); err != nil {
+		t.Skip("no symbolic links here")
+	}
+	if err := WriteFileAtomic(link, func(w io.Writer) error { _, err := io.WriteString(w, "new\n"); return err }); err != nil {
+		t.Fatal(err)
+	}
+	if fi, _ := os.Lstat(link); fi.Mode()&os.ModeSymlink == 0 {
+		t.Error("the link was replaced by a file")
+	}
+	if b, _ := os.ReadFile(target); string(b) != "new\n" {
+		t.Errorf("the link's file holds %q", b)
+	}
+	if err := WriteFileAtomic(dir, func(io.Writer) error { return nil }); err == nil {
+		t.Error("a folder as output was accepted")
+	}
+}
