@@ -118,6 +118,10 @@ func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args
 	if err := opts.values.check(vals, ds.Classes, kind); err != nil {
 		return err
 	}
+	// A wrong --by is said before the cross-validation, not after it.
+	if _, _, _, err := overlap.Axis(log, opts.by); err != nil {
+		return usagef("--by: %w", err)
+	}
 	var probs [][]float64
 	var notes []string
 	switch {
