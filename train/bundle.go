@@ -36,9 +36,15 @@ import (
 // Format 2 added the ordnance screen (its metadata under "screen", its
 // forests after the history's: the plain one, then the depth one when
 // there is one). Format 1 files still load, without a screen.
+//
+// Format 3 moved the training vectors and their out-of-bag probabilities
+// out of the JSON into a binary section after the forests: for each, rows
+// and columns (uvarints), then rows×columns float64 bits, little-endian,
+// read straight into one flat array. Decoding them from JSON took most of
+// a large model's load. Formats 1 and 2 still load.
 const (
 	magic         = "SPADEMDL"
-	FormatVersion = 2
+	FormatVersion = 3
 	headerLen     = 8 + 2 + 2 + 8
 	maxModelBytes = 2 << 30
 	maxTreeDepth  = 4096
@@ -84,10 +90,10 @@ type Training struct {
 	IDs     []string    `json:"ids"`
 	Dates   []string    `json:"dates"`
 	Y       []int32     `json:"y"`
-	Vectors [][]float64 `json:"vectors"`
+	Vectors [][]float64 `json:"vectors,omitempty"` // in the binary section from format 3
 	// OutOfBag are the digs' out-of-bag class probabilities (NaN-free:
 	// a dig no tree left out gets its in-bag prediction).
-	OutOfBag [][]float64 `json:"out_of_bag"`
+	OutOfBag [][]float64 `json:"out_of_bag,omitempty"` // in the binary section from format 3
 }
 
 // Bundle is everything a model file holds.
@@ -134,9 +140,11 @@ func (b *Bundle) Marshal() ([]byte, error) {
 // Encode writes the model file to w, hashing as it goes, so that a large
 // model is not copied whole in memory on its way to disc.
 func (b *Bundle) Encode(w io.Writer) error {
-	meta, err := json.Marshal(metadata{Format: FormatVersion, Bundle: b})
+	lean := *b
+	lean.Training.Vectors, lean.Training.OutOfBag = nil, nil
+	meta, err := json.Marshal(metadata{Format: FormatVersion, Bundle: &lean})
 	if err != nil {
-		return fmt.Errorf("train: encoding model: %w", err)
+		return fmt.Errorf("encoding model: %w", err)
 	}
 	var forest bytes.Buffer
 	encodeForest(&forest, b.Forest)
@@ -146,6 +154,8 @@ func (b *Bundle) Encode(w io.Writer) error {
 	for _, f := range screens {
 		encodeForest(&forest, f)
 	}
+	encodeMatrix(&forest, b.Training.Vectors, b.Spec.Len())
+	encodeMatrix(&forest, b.Training.OutOfBag, len(b.Classes))
 	h := sha256.New()
 	hw := io.MultiWriter(w, h)
 	var head [headerLen + 4]byte
@@ -249,7 +259,7 @@ func Unmarshal(data []byte) (b *Bundle, err error) {
 	if meta.Format != int(version) {
 		return nil, fmt.Errorf("%w: the metadata says format %d, the header %d", ErrCorrupt, meta.Format, version)
 	}
-	if err := b.validate(); err != nil {
+	if err := b.validateHead(); err != nil {
 		return nil, fmt.Errorf("%w: %v", ErrCorrupt, err)
 	}
 	rest := bytes.NewReader(payload[4+mlen:])
@@ -262,8 +272,23 @@ func Unmarshal(data []byte) (b *Bundle, err error) {
 			return nil, fmt.Errorf("%w: screen: %v", ErrCorrupt, err)
 		}
 	}
+	if version >= 3 {
+		t := &b.Training
+		if t.Vectors != nil || t.OutOfBag != nil {
+			return nil, fmt.Errorf("%w: training vectors in the metadata of a format %d file", ErrCorrupt, version)
+		}
+		if t.Vectors, err = decodeMatrix(rest, b.Spec.Len()); err != nil {
+			return nil, fmt.Errorf("%w: training vectors: %v", ErrCorrupt, err)
+		}
+		if t.OutOfBag, err = decodeMatrix(rest, len(b.Classes)); err != nil {
+			return nil, fmt.Errorf("%w: out-of-bag probabilities: %v", ErrCorrupt, err)
+		}
+	}
 	if rest.Len() != 0 {
-		return nil, fmt.Errorf("%w: %d bytes after the last forest", ErrCorrupt, rest.Len())
+		return nil, fmt.Errorf("%w: %d bytes after the last section", ErrCorrupt, rest.Len())
+	}
+	if err := b.validate(); err != nil {
+		return nil, fmt.Errorf("%w: %v", ErrCorrupt, err)
 	}
 	forest.Names, forest.Classes, forest.Mtry = b.Spec.Names, b.Classes, b.Summary.Mtry
 	forest.Importance = make([]float64, len(b.Spec.Names))
@@ -275,7 +300,9 @@ func Unmarshal(data []byte) (b *Bundle, err error) {
 	return b, nil
 }
 
-func (b *Bundle) validate() error {
+// validateHead checks what decoding the forests needs: the spec, the label
+// and the classes.
+func (b *Bundle) validateHead() error {
 	if b.Spec == nil {
 		return errors.New("no feature spec")
 	}
@@ -287,6 +314,14 @@ func (b *Bundle) validate() error {
 	}
 	if len(b.Classes) == 0 || !slices.IsSorted(b.Classes) || len(slices.Compact(slices.Clone(b.Classes))) != len(b.Classes) {
 		return errors.New("class list empty or not sorted and distinct")
+	}
+	return nil
+}
+
+// validate checks the whole bundle.
+func (b *Bundle) validate() error {
+	if err := b.validateHead(); err != nil {
+		return err
 	}
 	t := &b.Training
 	n, p, K := len(t.Y), b.Spec.Len(), len(b.Classes)
@@ -503,4 +538,54 @@ func pathCause(err error) error {
 		return pe.Err
 	}
 	return err
+}
+
+// encodeMatrix writes rows of cols float64s: the counts as uvarints, then
+// the values' bits, little-endian.
+func encodeMatrix(w *bytes.Buffer, rows [][]float64, cols int) {
+	var buf [binary.MaxVarintLen64]byte
+	w.Write(buf[:binary.PutUvarint(buf[:], uint64(len(rows)))])
+	w.Write(buf[:binary.PutUvarint(buf[:], uint64(cols))])
+	var b [8]byte
+	for _, r := range rows {
+		if len(r) != cols {
+			panic("train: length mismatch")
+		}
+		for _, v := range r {
+			binary.LittleEndian.PutUint64(b[:], math.Float64bits(v))
+			w.Write(b[:])
+		}
+	}
+}
+
+// decodeMatrix reads what encodeMatrix wrote into one flat array, the rows
+// being views of it: no allocation per row.
+func decodeMatrix(r *bytes.Reader, cols int) ([][]float64, error) {
+	n, err := binary.ReadUvarint(r)
+	if err != nil {
+		return nil, err
+	}
+	c, err := binary.ReadUvarint(r)
+	if err != nil {
+		return nil, err
+	}
+	if int(c) != cols || c == 0 {
+		return nil, fmt.Errorf("%d columns, want %d", c, cols)
+	}
+	if n > uint64(r.Len())/8/c {
+		return nil, fmt.Errorf("%d rows of %d do not fit in the %d bytes left", n, c, r.Len())
+	}
+	raw := make([]byte, n*c*8)
+	if _, err := io.ReadFull(r, raw); err != nil {
+		return nil, err
+	}
+	flat := make([]float64, n*c)
+	for i := range flat {
+		flat[i] = math.Float64frombits(binary.LittleEndian.Uint64(raw[8*i:]))
+	}
+	rows := make([][]float64, n)
+	for i := range rows {
+		rows[i] = flat[i*cols : (i+1)*cols : (i+1)*cols]
+	}
+	return rows, nil
 }

@@ -7,6 +7,7 @@ import (
 	"encoding/json"
 	"errors"
 	"math"
+	"reflect"
 	"slices"
 	"testing"
 
@@ -154,5 +155,60 @@ func TestScreenTierMismatchIsCorrupt(t *testing.T) {
 	copy(v1[len(v1)-32:], sum[:])
 	if _, err := Unmarshal(v1); !errors.Is(err, ErrCorrupt) {
 		t.Errorf("format mismatch: %v", err)
+	}
+}
+
+// encodeV2 writes a bundle as spade wrote format 2: the training vectors
+// and out-of-bag rows in the JSON, the screen's forests after the
+// history's, nothing after them.
+func encodeV2(b *Bundle) []byte {
+	meta, _ := json.Marshal(metadata{Format: 2, Bundle: b})
+	var forest bytes.Buffer
+	encodeForest(&forest, b.Forest)
+	screens := b.Screen.forests()
+	forest.WriteByte(byte(len(screens)))
+	for _, f := range screens {
+		encodeForest(&forest, f)
+	}
+	var out bytes.Buffer
+	out.WriteString(magic)
+	binary.Write(&out, binary.LittleEndian, uint16(2))
+	binary.Write(&out, binary.LittleEndian, uint16(0))
+	binary.Write(&out, binary.LittleEndian, uint64(4+len(meta)+forest.Len()))
+	binary.Write(&out, binary.LittleEndian, uint32(len(meta)))
+	out.Write(meta)
+	out.Write(forest.Bytes())
+	sum := sha256Sum(out.Bytes())
+	out.Write(sum[:])
+	return out.Bytes()
+}
+
+func TestFormat2And3HoldTheSameTraining(t *testing.T) {
+	// Issue 15: format 3 keeps the training vectors and out-of-bag rows in
+	// a binary section. They come back bit for bit, and a format 2 file of
+	// the same bundle (vectors in the JSON) still loads to the same.
+	b := trainSmall(t, 5, 2)
+	three, err := b.Marshal()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if bytes.Contains(three, []byte(`"vectors"`)) || bytes.Contains(three, []byte(`"out_of_bag":[[`)) {
+		t.Error("format 3 still writes the vectors as JSON")
+	}
+	for name, data := range map[string][]byte{"format 3": three, "format 2": encodeV2(b)} {
+		got, err := Unmarshal(data)
+		if err != nil {
+			t.Fatalf("%s: %v", name, err)
+		}
+		if !reflect.DeepEqual(got.Training, b.Training) {
+			t.Errorf("%s: training differs", name)
+		}
+	}
+	// A cut binary section is refused, never a panic.
+	cut := slices.Clone(three[:len(three)-32-40])
+	binary.LittleEndian.PutUint64(cut[12:], uint64(len(cut)-headerLen))
+	sum := sha256Sum(cut)
+	if _, err := Unmarshal(append(cut, sum[:]...)); !errors.Is(err, ErrCorrupt) {
+		t.Errorf("cut binary section: %v", err)
 	}
 }
