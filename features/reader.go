@@ -307,11 +307,9 @@ func ReadLog(r io.Reader, name string, opts ReadOptions) (*Log, error) {
 	return log, nil
 }
 
-// Open opens a dig log by name; "-" is standard input. The caller closes it.
+// Open opens a dig log by its file name, with an error a person can act
+// on. The caller closes it. (Standard input is the command's to give.)
 func Open(name string) (io.ReadCloser, error) {
-	if name == "-" {
-		return io.NopCloser(os.Stdin), nil
-	}
 	f, err := os.Open(name)
 	if err != nil {
 		return nil, fmt.Errorf("cannot read %s: %w", name, pathErr(err))
@@ -319,7 +317,7 @@ func Open(name string) (io.ReadCloser, error) {
 	return f, nil
 }
 
-// ReadFile reads a dig log from a file name, "-" for standard input.
+// ReadFile reads a dig log from a file name.
 func ReadFile(name string, opts ReadOptions) (*Log, error) {
 	f, err := Open(name)
 	if err != nil {
