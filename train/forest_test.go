@@ -73,7 +73,10 @@ func TestGolearnPredictAgrees(t *testing.T) {
 	ds, _ := demo(t)
 	b := trainSmall(t, 12, 5)
 	f := b.Forest
-	inst, attrs, classAttr := ds.Instances()
+	inst, attrs, classAttr, err := ds.Instances()
+	if err != nil {
+		t.Fatal(err)
+	}
 	x := make([]float64, len(ds.Names))
 	for tr := range f.Trees {
 		node := f.DecisionTree(tr, attrs, classAttr)
@@ -93,7 +96,10 @@ func TestGolearnPredictAgrees(t *testing.T) {
 		// Leaf shares on a sample of rows.
 		id3 := &trees.ID3DecisionTree{Root: node}
 		for i := 0; i < ds.Rows(); i += 97 {
-			one, _, _ := ds.Subset([]int{i}).Instances()
+			one, _, _, err := ds.Subset([]int{i}).Instances()
+			if err != nil {
+				t.Fatal(err)
+			}
 			probs, err := id3.PredictProba(one)
 			if err != nil {
 				t.Fatal(err)

@@ -11,7 +11,7 @@ import (
 // Instances converts a table to golearn's base.DenseInstances: one
 // FloatAttribute per feature, in the table's fixed order, and a categorical
 // class attribute whose values are added in class order.
-func (d *Dataset) Instances() (*base.DenseInstances, []base.Attribute, base.Attribute) {
+func (d *Dataset) Instances() (*base.DenseInstances, []base.Attribute, base.Attribute, error) {
 	inst := base.NewDenseInstances()
 	attrs := make([]base.Attribute, len(d.Names))
 	specs := make([]base.AttributeSpec, len(d.Names))
@@ -27,10 +27,10 @@ func (d *Dataset) Instances() (*base.DenseInstances, []base.Attribute, base.Attr
 	}
 	classSpec := inst.AddAttribute(class)
 	if err := inst.AddClassAttribute(class); err != nil {
-		panic(fmt.Sprintf("train: golearn refused the class attribute: %v", err))
+		return nil, nil, nil, fmt.Errorf("golearn refused the class attribute: %w", err)
 	}
 	if err := inst.Extend(d.Rows()); err != nil {
-		panic(fmt.Sprintf("train: golearn could not allocate %d rows: %v", d.Rows(), err))
+		return nil, nil, nil, fmt.Errorf("golearn could not allocate %d rows: %w", d.Rows(), err)
 	}
 	for i := range d.Rows() {
 		for f := range d.Cols {
@@ -38,7 +38,7 @@ func (d *Dataset) Instances() (*base.DenseInstances, []base.Attribute, base.Attr
 		}
 		inst.Set(classSpec, i, class.GetSysValFromString(d.Classes[d.Y[i]]))
 	}
-	return inst, attrs, class
+	return inst, attrs, class, nil
 }
 
 // FromInstances reads a golearn table with float attributes and one class
