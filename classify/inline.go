@@ -41,7 +41,7 @@ func ParseInline(s string) (*features.Dig, error) {
 		if key == "id" || key == "depth" {
 			v, err := inlineNumber(val)
 			if err != nil {
-				return nil, fmt.Errorf("%w: %s=%q: %v", ErrInline, key, val, err)
+				return nil, fmt.Errorf("%w: %s=%q: %w", ErrInline, key, val, err)
 			}
 			if key == "id" {
 				d.DisplayID = v
@@ -55,7 +55,7 @@ func ParseInline(s string) (*features.Dig, error) {
 		isGround := strings.HasPrefix(key, "g")
 		hz, err := features.ParseHz(strings.TrimSuffix(strings.TrimPrefix(key, "g"), "hz"))
 		if err != nil {
-			return nil, fmt.Errorf("%w: %q: %v", ErrInline, f, err)
+			return nil, fmt.Errorf("%w: %q: %w", ErrInline, f, err)
 		}
 		ph, amp, ok := strings.Cut(val, "/")
 		if !ok {
@@ -63,14 +63,14 @@ func ParseInline(s string) (*features.Dig, error) {
 		}
 		p, err := inlineNumber(ph)
 		if err != nil {
-			return nil, fmt.Errorf("%w: %q: phase: %v", ErrInline, f, err)
+			return nil, fmt.Errorf("%w: %q: phase: %w", ErrInline, f, err)
 		}
 		a, err := inlineNumber(amp)
 		if err != nil || !(a > 0) {
 			if err == nil {
 				err = fmt.Errorf("must be > 0, got %v", a)
 			}
-			return nil, fmt.Errorf("%w: %q: amplitude: %v", ErrInline, f, err)
+			return nil, fmt.Errorf("%w: %q: amplitude: %w", ErrInline, f, err)
 		}
 		r := features.FromPolar(hz, p, a)
 		list := &d.Readings

@@ -92,7 +92,7 @@ func ParseValues(name, text string) (*Values, error) {
 		if errors.As(err, &pe) {
 			return nil, fmt.Errorf("%s:%d:%d: %w: %s", name, pe.Position.Line, pe.Position.Col, ErrValues, pe.Message)
 		}
-		return nil, fmt.Errorf("%s: %w: %v", name, ErrValues, err)
+		return nil, fmt.Errorf("%s: %w: %w", name, ErrValues, err)
 	}
 	if und := md.Undecoded(); len(und) > 0 {
 		return nil, fmt.Errorf("%s: %w: unknown key %q", name, ErrValues, und[0].String())
@@ -107,7 +107,7 @@ func ParseValues(name, text string) (*Values, error) {
 		v.HazardThreshold = DefaultHazardThreshold
 	}
 	if err := CheckHazardThreshold(v.HazardThreshold); err != nil {
-		return nil, fmt.Errorf("%s: %w: %v", name, ErrValues, err)
+		return nil, fmt.Errorf("%s: %w: %w", name, ErrValues, err)
 	}
 	// Written so that NaN fails: TOML accepts nan and inf as floats.
 	if !(v.CostPerDig >= 0) || math.IsInf(v.CostPerDig, 0) {

@@ -82,7 +82,7 @@ func csvSyntax(file string, err error) error {
 		}
 		return &ParseError{File: file, Line: ce.Line, Column: fmt.Sprintf("column %d", ce.Column), Err: fmt.Errorf("%w CSV: %v", ErrSyntax, ce.Err)}
 	}
-	return &ParseError{File: file, Err: fmt.Errorf("%w CSV: %v", ErrSyntax, err)}
+	return &ParseError{File: file, Err: fmt.Errorf("%w CSV: %w", ErrSyntax, err)}
 }
 
 func (c *csvSource) next() (Dig, error, bool) {

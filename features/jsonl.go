@@ -46,7 +46,7 @@ func (j *jsonlSource) next() (Dig, error, bool) {
 		if errors.Is(err, bufio.ErrTooLong) {
 			return Dig{}, &ParseError{File: j.rd.name, Line: j.line + 1, Err: fmt.Errorf("%w: the line is longer than %d MB, far more than any dig; is this a dig log?", ErrEncoding, MaxRecordBytes>>20)}, true
 		}
-		return Dig{}, &ParseError{File: j.rd.name, Line: j.line + 1, Err: fmt.Errorf("%w JSON Lines: %v", ErrSyntax, err)}, true
+		return Dig{}, &ParseError{File: j.rd.name, Line: j.line + 1, Err: fmt.Errorf("%w JSON Lines: %w", ErrSyntax, err)}, true
 	}
 	return Dig{}, io.EOF, false
 }
@@ -65,7 +65,7 @@ func (j *jsonlSource) row(b []byte) (Dig, error) {
 	}
 	var obj map[string]json.RawMessage
 	if err := json.Unmarshal(b, &obj); err != nil {
-		return Dig{}, perr("", fmt.Errorf("%w JSON: %v", ErrSyntax, err))
+		return Dig{}, perr("", fmt.Errorf("%w JSON: %w", ErrSyntax, err))
 	}
 	if dup := duplicateKey(b); dup != "" {
 		// encoding/json keeps the last of two equal keys without a word.
@@ -123,7 +123,7 @@ func (j *jsonlSource) row(b []byte) (Dig, error) {
 		}
 		if err != nil {
 			if _, ok := err.(*json.UnmarshalTypeError); ok {
-				err = fmt.Errorf("%w JSON: %v", ErrSyntax, err)
+				err = fmt.Errorf("%w JSON: %w", ErrSyntax, err)
 			}
 			return d, perr(name, err)
 		}

@@ -254,22 +254,22 @@ func Unmarshal(data []byte) (b *Bundle, err error) {
 	dec := json.NewDecoder(bytes.NewReader(payload[4 : 4+mlen]))
 	dec.DisallowUnknownFields()
 	if err := dec.Decode(&meta); err != nil {
-		return nil, fmt.Errorf("%w: metadata: %v", ErrCorrupt, err)
+		return nil, fmt.Errorf("%w: metadata: %w", ErrCorrupt, err)
 	}
 	if meta.Format != int(version) {
 		return nil, fmt.Errorf("%w: the metadata says format %d, the header %d", ErrCorrupt, meta.Format, version)
 	}
 	if err := b.validateHead(); err != nil {
-		return nil, fmt.Errorf("%w: %v", ErrCorrupt, err)
+		return nil, fmt.Errorf("%w: %w", ErrCorrupt, err)
 	}
 	rest := bytes.NewReader(payload[4+mlen:])
 	forest, err := decodeForest(rest, b.Spec.Len(), len(b.Classes))
 	if err != nil {
-		return nil, fmt.Errorf("%w: forest: %v", ErrCorrupt, err)
+		return nil, fmt.Errorf("%w: forest: %w", ErrCorrupt, err)
 	}
 	if version >= 2 {
 		if err := b.decodeScreen(rest); err != nil {
-			return nil, fmt.Errorf("%w: screen: %v", ErrCorrupt, err)
+			return nil, fmt.Errorf("%w: screen: %w", ErrCorrupt, err)
 		}
 	}
 	if version >= 3 {
@@ -278,17 +278,17 @@ func Unmarshal(data []byte) (b *Bundle, err error) {
 			return nil, fmt.Errorf("%w: training vectors in the metadata of a format %d file", ErrCorrupt, version)
 		}
 		if t.Vectors, err = decodeMatrix(rest, b.Spec.Len()); err != nil {
-			return nil, fmt.Errorf("%w: training vectors: %v", ErrCorrupt, err)
+			return nil, fmt.Errorf("%w: training vectors: %w", ErrCorrupt, err)
 		}
 		if t.OutOfBag, err = decodeMatrix(rest, len(b.Classes)); err != nil {
-			return nil, fmt.Errorf("%w: out-of-bag probabilities: %v", ErrCorrupt, err)
+			return nil, fmt.Errorf("%w: out-of-bag probabilities: %w", ErrCorrupt, err)
 		}
 	}
 	if rest.Len() != 0 {
 		return nil, fmt.Errorf("%w: %d bytes after the last section", ErrCorrupt, rest.Len())
 	}
 	if err := b.validate(); err != nil {
-		return nil, fmt.Errorf("%w: %v", ErrCorrupt, err)
+		return nil, fmt.Errorf("%w: %w", ErrCorrupt, err)
 	}
 	forest.Names, forest.Classes, forest.Mtry = b.Spec.Names, b.Classes, b.Summary.Mtry
 	forest.Importance = make([]float64, len(b.Spec.Names))
@@ -401,7 +401,7 @@ func (fr *forestReader) uvarint(limit uint64, what string) uint64 {
 	}
 	v, err := binary.ReadUvarint(fr.r)
 	if err != nil {
-		fr.err = fmt.Errorf("%s: %v", what, err)
+		fr.err = fmt.Errorf("%s: %w", what, err)
 		return 0
 	}
 	if v > limit {

@@ -150,11 +150,11 @@ func TrainScreen(ctx context.Context, log *features.Log, spec *features.FeatureS
 	if o.Calibration != nil {
 		cal = *o.Calibration
 	} else if cal, err = datasets.Calibrate(log); err != nil {
-		return nil, fmt.Errorf("%w: %v", ErrNoScreen, err)
+		return nil, fmt.Errorf("%w: %w", ErrNoScreen, err)
 	}
 	lib, _, err := datasets.Library(datasets.LibraryOptions{Freqs: log.Freqs, N: o.Library, Seed: o.Seed ^ 0x5c7ee, Cal: cal, Exclude: o.Exclude})
 	if err != nil {
-		return nil, fmt.Errorf("%w: %v", ErrNoScreen, err)
+		return nil, fmt.Errorf("%w: %w", ErrNoScreen, err)
 	}
 	s = &Screen{
 		Library: datasets.LibraryVersion, LibraryDigs: len(lib), Hazards: o.Hazards, Trees: o.Trees,

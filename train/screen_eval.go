@@ -52,7 +52,7 @@ func EvaluateScreen(ctx context.Context, log *features.Log, spec *features.Featu
 	// held-out groups' readings.
 	cal, err := datasets.Calibrate(log)
 	if err != nil {
-		return nil, fmt.Errorf("%w: %v", ErrNoScreen, err)
+		return nil, fmt.Errorf("%w: %w", ErrNoScreen, err)
 	}
 	o.Calibration = &cal
 	full, err := TrainScreen(ctx, log, spec, o)
