@@ -115,12 +115,29 @@ func TestIsHazard(t *testing.T) {
 func encodeV1(b *Bundle) []byte {
 	c := *b
 	c.Screen = nil
-	meta, _ := json.Marshal(metadata{Format: 1, Bundle: &c})
+	return encodeOld(&c, 1)
+}
+
+// encodeV2 writes a bundle as spade wrote format 2: the screen's forests
+// after the history's.
+func encodeV2(b *Bundle) []byte { return encodeOld(b, 2) }
+
+// encodeOld writes format 1 or 2: the training vectors and out-of-bag rows
+// in the JSON, and (format 2) the screen's forests after the history's.
+func encodeOld(b *Bundle, version uint16) []byte {
+	meta, _ := json.Marshal(metadata{Format: int(version), Bundle: b})
 	var forest bytes.Buffer
 	encodeForest(&forest, b.Forest)
+	if version >= 2 {
+		screens := b.Screen.forests()
+		forest.WriteByte(byte(len(screens)))
+		for _, f := range screens {
+			encodeForest(&forest, f)
+		}
+	}
 	var out bytes.Buffer
 	out.WriteString(magic)
-	binary.Write(&out, binary.LittleEndian, uint16(1))
+	binary.Write(&out, binary.LittleEndian, version)
 	binary.Write(&out, binary.LittleEndian, uint16(0))
 	binary.Write(&out, binary.LittleEndian, uint64(4+len(meta)+forest.Len()))
 	binary.Write(&out, binary.LittleEndian, uint32(len(meta)))
@@ -156,31 +173,6 @@ func TestScreenTierMismatchIsCorrupt(t *testing.T) {
 	if _, err := Unmarshal(v1); !errors.Is(err, ErrCorrupt) {
 		t.Errorf("format mismatch: %v", err)
 	}
-}
-
-// encodeV2 writes a bundle as spade wrote format 2: the training vectors
-// and out-of-bag rows in the JSON, the screen's forests after the
-// history's, nothing after them.
-func encodeV2(b *Bundle) []byte {
-	meta, _ := json.Marshal(metadata{Format: 2, Bundle: b})
-	var forest bytes.Buffer
-	encodeForest(&forest, b.Forest)
-	screens := b.Screen.forests()
-	forest.WriteByte(byte(len(screens)))
-	for _, f := range screens {
-		encodeForest(&forest, f)
-	}
-	var out bytes.Buffer
-	out.WriteString(magic)
-	binary.Write(&out, binary.LittleEndian, uint16(2))
-	binary.Write(&out, binary.LittleEndian, uint16(0))
-	binary.Write(&out, binary.LittleEndian, uint64(4+len(meta)+forest.Len()))
-	binary.Write(&out, binary.LittleEndian, uint32(len(meta)))
-	out.Write(meta)
-	out.Write(forest.Bytes())
-	sum := sha256Sum(out.Bytes())
-	out.Write(sum[:])
-	return out.Bytes()
 }
 
 func TestFormat2And3HoldTheSameTraining(t *testing.T) {
