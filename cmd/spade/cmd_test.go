@@ -180,3 +180,21 @@ func TestMessagesAPersonCanActOn(t *testing.T) {
 		}
 	}
 }
+
+func TestFileFlagsCompleteToFiles(t *testing.T) {
+	// --model completes to .spade files, --values to .toml (cobra's
+	// directive 8 filters by extension), --format to its words.
+	for _, c := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"__complete", "classify", "--model", ""}, "spade\n:8\n"},
+		{[]string{"__complete", "evaluate", "--values", ""}, "toml\n:8\n"},
+		{[]string{"__complete", "classify", "--format", ""}, "table\njson\ncsv\n:4\n"},
+	} {
+		out, _, _ := spade(t, "", c.args...)
+		if !strings.HasPrefix(out, c.want) {
+			t.Errorf("%v: %q, want %q first", c.args, out, c.want)
+		}
+	}
+}

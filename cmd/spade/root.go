@@ -142,6 +142,14 @@ func registerValueCompletions(c *cobra.Command) {
 	if f := c.Flags().Lookup("format"); f != nil {
 		words["format"] = strings.Split(f.Usage, ", ")
 	}
+	// Flags that name files complete to files, of the kind they take.
+	for name, exts := range map[string][]string{
+		"model": {"spade"}, "values": {"toml"}, "plot": {"png", "svg"}, "output": nil,
+	} {
+		if c.Flags().Lookup(name) != nil {
+			c.MarkFlagFilename(name, exts...)
+		}
+	}
 	for name, values := range words {
 		if c.Flags().Lookup(name) == nil {
 			continue
