@@ -3,7 +3,6 @@ package classify
 import (
 	"errors"
 	"fmt"
-	"io/fs"
 	"math"
 	"os"
 	"slices"
@@ -71,11 +70,7 @@ var ErrValues = errors.New("bad values file")
 func LoadValues(path string) (*Values, error) {
 	data, err := os.ReadFile(path)
 	if err != nil {
-		var pe *fs.PathError
-		if errors.As(err, &pe) {
-			err = pe.Err
-		}
-		return nil, fmt.Errorf("cannot read values file %s: %w", path, err)
+		return nil, fmt.Errorf("cannot read values file %s: %w", path, features.PathCause(err))
 	}
 	return ParseValues(path, string(data))
 }

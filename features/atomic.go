@@ -73,7 +73,7 @@ func WriteFileAtomicContext(ctx context.Context, path string, write func(io.Writ
 		}
 	}
 	if err != nil {
-		return fmt.Errorf("cannot write %s: %w", path, pathErr(err))
+		return fmt.Errorf("cannot write %s: %w", path, PathCause(err))
 	}
 	defer func() {
 		if err != nil {
@@ -88,18 +88,18 @@ func WriteFileAtomicContext(ctx context.Context, path string, write func(io.Writ
 		return err
 	}
 	if err = tmp.Sync(); err != nil {
-		return fmt.Errorf("cannot write %s: %w", path, pathErr(err))
+		return fmt.Errorf("cannot write %s: %w", path, PathCause(err))
 	}
 	if err = tmp.Close(); err != nil {
-		return fmt.Errorf("cannot write %s: %w", path, pathErr(err))
+		return fmt.Errorf("cannot write %s: %w", path, PathCause(err))
 	}
 	if keepMode {
 		if err = os.Chmod(tmp.Name(), mode); err != nil {
-			return fmt.Errorf("cannot write %s: %w", path, pathErr(err))
+			return fmt.Errorf("cannot write %s: %w", path, PathCause(err))
 		}
 	}
 	if err = os.Rename(tmp.Name(), path); err != nil {
-		return fmt.Errorf("cannot write %s: %w", path, pathErr(err))
+		return fmt.Errorf("cannot write %s: %w", path, PathCause(err))
 	}
 	return nil
 }
@@ -109,14 +109,14 @@ func WriteFileAtomicContext(ctx context.Context, path string, write func(io.Writ
 func writeInPlace(ctx context.Context, path string, write func(io.Writer) error) error {
 	f, err := os.OpenFile(path, os.O_WRONLY, 0)
 	if err != nil {
-		return fmt.Errorf("cannot write %s: %w", path, pathErr(err))
+		return fmt.Errorf("cannot write %s: %w", path, PathCause(err))
 	}
 	if err := write(ctxWriter{ctx, f}); err != nil {
 		f.Close()
 		return err
 	}
 	if err := f.Close(); err != nil {
-		return fmt.Errorf("cannot write %s: %w", path, pathErr(err))
+		return fmt.Errorf("cannot write %s: %w", path, PathCause(err))
 	}
 	return nil
 }
@@ -157,8 +157,10 @@ func globEscape(s string) string {
 	return string(out)
 }
 
-// pathErr drops the path an *fs.PathError repeats (the temporary file's).
-func pathErr(err error) error {
+// PathCause drops the operation and path an *fs.PathError repeats, so that
+// a message names its file once: "cannot read model m.spade: no such file
+// or directory", and never the temporary file's name.
+func PathCause(err error) error {
 	var pe *fs.PathError
 	if errors.As(err, &pe) {
 		return pe.Err

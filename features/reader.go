@@ -312,7 +312,7 @@ func ReadLog(r io.Reader, name string, opts ReadOptions) (*Log, error) {
 func Open(name string) (io.ReadCloser, error) {
 	f, err := os.Open(name)
 	if err != nil {
-		return nil, fmt.Errorf("cannot read %s: %w", name, pathErr(err))
+		return nil, fmt.Errorf("cannot read %s: %w", name, PathCause(err))
 	}
 	return f, nil
 }

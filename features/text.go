@@ -26,3 +26,11 @@ func HzList(hz []int) string {
 	}
 	return ListAnd(s) + " Hz"
 }
+
+// Plural counts a noun as a person does: "1 dig", "2 digs".
+func Plural(n int, noun string) string {
+	if n == 1 {
+		return "1 " + noun
+	}
+	return strconv.Itoa(n) + " " + noun + "s"
+}

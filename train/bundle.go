@@ -10,7 +10,6 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"io/fs"
 	"math"
 	"os"
 	"slices"
@@ -191,7 +190,7 @@ func (b *Bundle) SaveContext(ctx context.Context, path string) error {
 func Load(path string) (*Bundle, error) {
 	f, err := os.Open(path)
 	if err != nil {
-		return nil, fmt.Errorf("cannot read model %s: %w", path, pathCause(err))
+		return nil, fmt.Errorf("cannot read model %s: %w", path, features.PathCause(err))
 	}
 	defer f.Close()
 	// The magic first, and then no more than the header says: a file that
@@ -206,7 +205,7 @@ func Load(path string) (*Bundle, error) {
 	}
 	rest, err := io.ReadAll(io.LimitReader(f, int64(plen)+sha256.Size+1))
 	if err != nil {
-		return nil, fmt.Errorf("cannot read model %s: %w", path, pathCause(err))
+		return nil, fmt.Errorf("cannot read model %s: %w", path, features.PathCause(err))
 	}
 	b, err := Unmarshal(append(head[:], rest...))
 	if err != nil {
@@ -529,16 +528,6 @@ func decodeForest(r *bytes.Reader, features, classes int) (*Forest, error) {
 }
 
 func sha256Sum(b []byte) [32]byte { return sha256.Sum256(b) }
-
-// pathCause drops the operation and path that an *fs.PathError repeats, so a
-// message says "cannot read model m.spade: no such file or directory" once.
-func pathCause(err error) error {
-	var pe *fs.PathError
-	if errors.As(err, &pe) {
-		return pe.Err
-	}
-	return err
-}
 
 // encodeMatrix writes rows of cols float64s: the counts as uvarints, then
 // the values' bits, little-endian.

@@ -68,20 +68,13 @@ func HeldOut(b *train.Bundle, log *features.Log, ds *train.Dataset) ([][]float64
 		}
 	}
 	if collided > 0 {
-		return nil, nil, fmt.Errorf("%w: %s of %s share an id with its training digs but not their readings or class", ErrOtherLog, digs(collided), log.Name)
+		return nil, nil, fmt.Errorf("%w: %s of %s share an id with its training digs but not their readings or class", ErrOtherLog, features.Plural(collided, "dig"), log.Name)
 	}
 	var notes []string
 	if unseen := len(log.Digs) - matched; unseen > 0 {
-		notes = append(notes, fmt.Sprintf("%s of this log are not in the model's training digs: they are judged by the model's prediction, held out by construction", digs(unseen)))
+		notes = append(notes, fmt.Sprintf("%s of this log are not in the model's training digs: they are judged by the model's prediction, held out by construction", features.Plural(unseen, "dig")))
 	}
 	return probs, notes, nil
-}
-
-func digs(n int) string {
-	if n == 1 {
-		return "1 dig"
-	}
-	return fmt.Sprintf("%d digs", n)
 }
 
 // sameVector reports whether two feature vectors are one dig's: equal to

@@ -138,7 +138,7 @@ func runClassify(ctx context.Context, g *globalOptions, opts classifyOptions, ar
 			return cerr
 		}
 		if err != nil {
-			return keepOutput{fmt.Errorf("%w (the results of the %s before it are written)", err, plural(out.n, "reading"))}
+			return keepOutput{fmt.Errorf("%w (the results of the %s before it are written)", err, features.Plural(out.n, "reading"))}
 		}
 		return nil
 	})

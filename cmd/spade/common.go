@@ -1,7 +1,6 @@
 package main
 
 import (
-	"strconv"
 	"strings"
 
 	"github.com/spade-detect/spade/classify"
@@ -90,12 +89,4 @@ func (v *valuesFlags) check(vals *classify.Values, classes []string, label featu
 		source = "--keep"
 	}
 	return vals.CheckNames(source, classes, label)
-}
-
-// plural counts a noun: "1 reading", "2 readings".
-func plural(n int, noun string) string {
-	if n == 1 {
-		return "1 " + noun
-	}
-	return strconv.Itoa(n) + " " + noun + "s"
 }
