@@ -88,6 +88,19 @@ func FromLog(log *features.Log, spec *features.FeatureSpec, kind features.Label)
 	return ds, nil
 }
 
+// TableOf is a log's feature table, labelled by kind, and the spec that
+// made it: the whole spec of the log's frequencies, or for a log of display
+// IDs only a nil spec and FromDisplayIDs' one column.
+func TableOf(log *features.Log, kind features.Label) (*features.FeatureSpec, *Dataset, error) {
+	if log.DisplayIDOnly {
+		ds, err := FromDisplayIDs(log, kind)
+		return nil, ds, err
+	}
+	spec := features.NewSpec(log.Freqs, log.HasDisplayID)
+	ds, err := FromLog(log, spec, kind)
+	return spec, ds, err
+}
+
 // FromDisplayIDs is the one-column table of a log of display IDs only
 // (features.ReadOptions.DisplayIDOnly): what the single-number baseline and
 // the ambiguous ranges need, and no more.

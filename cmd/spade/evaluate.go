@@ -86,17 +86,12 @@ func runEvaluate(ctx context.Context, g *globalOptions, opts evaluateOptions, ar
 	if err != nil {
 		return err
 	}
-	var spec *features.FeatureSpec
-	var ds *train.Dataset
-	if log.DisplayIDOnly {
-		ds, err = train.FromDisplayIDs(log, kind)
-	} else {
-		spec = features.NewSpec(log.Freqs, log.HasDisplayID)
-		g.specNotes(spec)
-		ds, err = train.FromLog(log, spec, kind)
-	}
+	spec, ds, err := train.TableOf(log, kind)
 	if err != nil {
 		return err
+	}
+	if spec != nil {
+		g.specNotes(spec)
 	}
 	if err := opts.values.check(vals, ds.Classes, kind); err != nil {
 		return err

@@ -101,17 +101,10 @@ func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args
 	if err != nil {
 		return err
 	}
-	var spec *features.FeatureSpec
-	var ds *train.Dataset
-	if log.DisplayIDOnly {
-		if opts.model != "" {
-			return usagef("--model: this log has display IDs only, and a model needs phase and amplitude readings; leave out --model")
-		}
-		ds, err = train.FromDisplayIDs(log, kind)
-	} else {
-		spec = features.NewSpec(log.Freqs, log.HasDisplayID)
-		ds, err = train.FromLog(log, spec, kind)
+	if log.DisplayIDOnly && opts.model != "" {
+		return usagef("--model: this log has display IDs only, and a model needs phase and amplitude readings; leave out --model")
 	}
+	spec, ds, err := train.TableOf(log, kind)
 	if err != nil {
 		return err
 	}

@@ -134,9 +134,6 @@ func writePerClass(w io.Writer, who string, classes []string, m train.Metrics) {
 		pc := m.PerClass[c]
 		fmt.Fprintf(w, "  %-32s %5d %9.2f %7.2f %6.2f\n", trunc(c, 32), pc.Support, pc.Precision, pc.Recall, pc.F1)
 	}
-	if who == "one number" {
-		who = "the one number"
-	}
 	writeConfusions(w, who, classes, m.Confusion)
 }
 
