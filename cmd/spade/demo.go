@@ -88,7 +88,11 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 
 	// 2. Which ranges are ambiguous?
 	fmt.Fprintf(w, "\n== 2. Which display IDs could be anything on this ground?\n\n")
-	ov, unit, err := analyseOverlap(log, ds, ev.Probs, vals, "display_id", overlap.Options{})
+	axis, by, unit, err := overlap.Axis(log, "display_id")
+	if err != nil {
+		return err
+	}
+	ov, err := analyseOverlap(ds, ev.Probs, vals, axis, by, overlap.Options{})
 	if err != nil {
 		return err
 	}

@@ -111,8 +111,9 @@ func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args
 	if err := opts.values.check(vals, ds.Classes, kind); err != nil {
 		return err
 	}
-	// A wrong --by is said before the cross-validation, not after it.
-	if _, _, _, err := overlap.Axis(log, opts.by); err != nil {
+	// The axis first: a wrong --by is said before the cross-validation.
+	axis, by, unit, err := overlap.Axis(log, opts.by)
+	if err != nil {
 		return usagef("--by: %w", err)
 	}
 	var probs [][]float64
@@ -132,7 +133,7 @@ func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args
 		}
 		probs = ev.Probs
 	}
-	res, unit, err := analyseOverlap(log, ds, probs, vals, opts.by, overlap.Options{Width: opts.bin, MinTopShare: opts.minTop, MaxEntropy: opts.maxEntropy})
+	res, err := analyseOverlap(ds, probs, vals, axis, by, overlap.Options{Width: opts.bin, MinTopShare: opts.minTop, MaxEntropy: opts.maxEntropy})
 	if err != nil {
 		return err
 	}
@@ -179,12 +180,9 @@ func modelProbs(path string, kind features.Label, log *features.Log, ds *train.D
 	return probs, notes, err
 }
 
-// analyseOverlap picks the axis and runs the analysis.
-func analyseOverlap(log *features.Log, ds *train.Dataset, probs [][]float64, vals *classify.Values, by string, o overlap.Options) (*overlap.Result, string, error) {
-	axis, by, unit, err := overlap.Axis(log, by)
-	if err != nil {
-		return nil, "", usagef("--by: %w", err)
-	}
+// analyseOverlap runs the analysis on an axis (overlap.Axis), with the
+// keepers and hazards of the values file.
+func analyseOverlap(ds *train.Dataset, probs [][]float64, vals *classify.Values, axis []float64, by string, o overlap.Options) (*overlap.Result, error) {
 	if vals != nil {
 		o.Keepers, o.Hazards = vals.Split(ds.Classes)
 	} else {
@@ -192,8 +190,7 @@ func analyseOverlap(log *features.Log, ds *train.Dataset, probs [][]float64, val
 		// default hazards (any shape "ordnance") still marked.
 		_, o.Hazards = classify.DefaultValues().Split(ds.Classes)
 	}
-	res, err := overlap.Analyse(by, axis, ds.Classes, ds.Y, probs, o)
-	return res, unit, err
+	return overlap.Analyse(by, axis, ds.Classes, ds.Y, probs, o)
 }
 
 func writeOverlapTable(w io.Writer, r *overlap.Result, noValues bool) {
