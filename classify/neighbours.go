@@ -3,6 +3,8 @@ package classify
 import (
 	"math"
 	"slices"
+	"sync"
+	"sync/atomic"
 
 	"gonum.org/v1/gonum/mat"
 	"gonum.org/v1/gonum/stat"
@@ -28,6 +30,12 @@ type space struct {
 	mean  []float64
 	white []float64 // dims×dims, row-major: W = Λ^(-1/2)·Qᵀ of the covariance QΛQᵀ
 	ref   []float64 // row-major whitened training vectors
+	// index is built at the indexAfter-th search of a history of at least
+	// indexMinRows rows: the scan is faster below that length, and a run of
+	// a few readings would not repay the build (BenchmarkNearest).
+	index     *kdIndex
+	indexOnce sync.Once
+	searches  atomic.Int64
 }
 
 // minEigenShare floors the covariance's eigenvalues, relative to the
@@ -95,10 +103,20 @@ func (s *space) standardise(v, dst []float64) []float64 {
 }
 
 // nearest finds the k training rows nearest to the standardised vector q,
-// skipping row skip (-1 for none), by a linear scan that abandons a row as
+// skipping row skip (-1 for none): by the k-d index on a long history, else
+// by the scan. Both give the same rows and distances.
+func (s *space) nearest(q []float64, k, skip int, out []Neighbour) []Neighbour {
+	if len(s.ref) >= indexMinRows*s.dims && s.searches.Add(1) > indexAfter {
+		s.indexOnce.Do(func() { s.index = newIndex(s) })
+		return s.index.nearest(q, k, skip, out)
+	}
+	return s.scan(q, k, skip, out)
+}
+
+// scan is nearest by a linear scan that abandons a row as
 // soon as its partial distance passes the current k-th best. Results are
 // ordered by distance, then row, so ties are broken the same way every time.
-func (s *space) nearest(q []float64, k, skip int, out []Neighbour) []Neighbour {
+func (s *space) scan(q []float64, k, skip int, out []Neighbour) []Neighbour {
 	out = out[:0]
 	worst := math.Inf(1)
 	n := len(s.ref) / s.dims
