@@ -294,7 +294,6 @@ func Unmarshal(data []byte) (b *Bundle, err error) {
 	for i, n := range b.Spec.Names {
 		forest.Importance[i] = b.Summary.Importance[n]
 	}
-	forest.compile()
 	b.Forest = forest
 	return b, nil
 }
@@ -361,8 +360,9 @@ func (b *Bundle) validate() error {
 func encodeForest(w *bytes.Buffer, f *Forest) {
 	var buf [binary.MaxVarintLen64]byte
 	uv := func(v uint64) { w.Write(buf[:binary.PutUvarint(buf[:], v)]) }
-	uv(uint64(len(f.Trees)))
-	for _, t := range f.Trees {
+	uv(uint64(f.NumTrees()))
+	for ti := range f.NumTrees() {
+		t := f.Tree(ti)
 		uv(uint64(t.Nodes()))
 		var walk func(i int32)
 		walk = func(i int32) {
@@ -442,7 +442,6 @@ func (b *Bundle) decodeScreen(r *bytes.Reader) error {
 			return err
 		}
 		f.Names, f.Classes = sf.Names, screenClassNames
-		f.compile()
 		sf.forest = f
 	}
 	return nil
@@ -456,7 +455,7 @@ func decodeForest(r *bytes.Reader, features, classes int) (*Forest, error) {
 	if fr.err == nil && nTrees == 0 {
 		return nil, errors.New("no trees")
 	}
-	f := &Forest{}
+	var trees []*Tree
 	for range nTrees {
 		nodes := fr.uvarint(limit/2, "node count")
 		if fr.err != nil {
@@ -522,9 +521,9 @@ func decodeForest(r *bytes.Reader, features, classes int) (*Forest, error) {
 				return nil, errors.New("empty leaf")
 			}
 		}
-		f.Trees = append(f.Trees, t)
+		trees = append(trees, t)
 	}
-	return f, nil
+	return &Forest{flat: compile(trees, classes)}, nil
 }
 
 func sha256Sum(b []byte) [32]byte { return sha256.Sum256(b) }

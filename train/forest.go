@@ -44,7 +44,6 @@ func (o Options) withDefaults(features int) Options {
 type Forest struct {
 	Names      []string
 	Classes    []string
-	Trees      []*Tree
 	Mtry       int
 	Importance []float64 // mean impurity decrease per feature, normalised to sum 1
 	flat       *flatForest
@@ -76,7 +75,8 @@ func Grow(ctx context.Context, ds *Dataset, o Options) (*Forest, [][]float64, er
 	}
 	o = o.withDefaults(len(ds.Names))
 	K := len(ds.Classes)
-	f := &Forest{Names: ds.Names, Classes: ds.Classes, Trees: make([]*Tree, o.Trees), Mtry: o.Mtry}
+	f := &Forest{Names: ds.Names, Classes: ds.Classes, Mtry: o.Mtry}
+	grown := make([]*Tree, o.Trees)
 	imps := make([][]float64, o.Trees)
 	var next, done atomic.Int64
 	var wg sync.WaitGroup
@@ -94,7 +94,7 @@ func Grow(ctx context.Context, ds *Dataset, o Options) (*Forest, [][]float64, er
 				bootstrap(rng, n, w)
 				imps[t] = make([]float64, len(ds.Names))
 				p := treeParams{mtry: o.Mtry, minLeaf: o.MinLeaf, maxDepth: o.MaxDepth, classes: K, importances: imps[t]}
-				f.Trees[t] = growTree(ds, w, p, rng)
+				grown[t] = growTree(ds, w, p, rng)
 				if o.Progress != nil {
 					o.Progress(int(done.Add(1)))
 				}
@@ -122,7 +122,7 @@ func Grow(ctx context.Context, ds *Dataset, o Options) (*Forest, [][]float64, er
 			f.Importance[j] /= tot
 		}
 	}
-	f.compile()
+	f.flat = compile(grown, K)
 	return f, f.outOfBag(ds, o), nil
 }
 
@@ -134,7 +134,7 @@ func (f *Forest) outOfBag(ds *Dataset, o Options) [][]float64 {
 	votes := make([]int, n)
 	w := make([]int32, n)
 	x := make([]float64, len(ds.Names))
-	for t := range f.Trees {
+	for t := range f.NumTrees() {
 		bootstrap(treeRNG(o.Seed, t), n, w)
 		for i := range n {
 			if w[i] > 0 {
@@ -158,72 +158,6 @@ func (f *Forest) outOfBag(ds *Dataset, o Options) [][]float64 {
 		out[i] = p
 	}
 	return out
-}
-
-// flatForest is the forest compiled for prediction: all trees' nodes in one
-// array of 16-byte nodes (one cache line visit a node, where three parallel
-// arrays cost three), and each leaf's non-zero class shares as (class,
-// share) pairs. Most leaves are pure, so sparse shares take a fraction of
-// the memory of a dense row per leaf (at 100k digs, tens of megabytes
-// instead of hundreds) and fewer additions per tree.
-type flatForest struct {
-	K        int
-	roots    []int32
-	nodes    []flatNode
-	leafCls  []int32
-	leafProb []float64
-}
-
-// flatNode is a split (feature >= 0: go to child, or child+1 when the value
-// is greater than thr) or a leaf (feature = -n for n shares starting at
-// child in leafCls and leafProb).
-type flatNode struct {
-	thr     float64
-	feature int32
-	child   int32
-}
-
-func (f *Forest) compile() {
-	ff := &flatForest{K: len(f.Classes)}
-	for _, t := range f.Trees {
-		base := int32(len(ff.nodes))
-		ff.roots = append(ff.roots, base)
-		for i := range t.Feature {
-			if t.Feature[i] >= 0 {
-				ff.nodes = append(ff.nodes, flatNode{thr: t.Threshold[i], feature: t.Feature[i], child: base + t.Left[i]})
-				continue
-			}
-			l := t.Left[i]
-			lo, hi := t.LeafStart[l], t.LeafStart[l+1]
-			ff.nodes = append(ff.nodes, flatNode{feature: -(hi - lo), child: int32(len(ff.leafCls))})
-			var tot float64
-			for j := lo; j < hi; j++ {
-				tot += float64(t.LeafCount[j])
-			}
-			for j := lo; j < hi; j++ {
-				ff.leafCls = append(ff.leafCls, t.LeafClass[j])
-				ff.leafProb = append(ff.leafProb, float64(t.LeafCount[j])/tot)
-			}
-		}
-	}
-	f.flat = ff
-}
-
-// addTree adds tree t's leaf shares for x to p.
-func (ff *flatForest) addTree(t int, x []float64, p []float64) {
-	n := ff.nodes[ff.roots[t]]
-	for n.feature >= 0 {
-		next := n.child
-		if x[n.feature] > n.thr {
-			next++
-		}
-		n = ff.nodes[next]
-	}
-	end := n.child - n.feature
-	cls, prob := ff.leafCls[n.child:end], ff.leafProb[n.child:end]
-	for j, k := range cls {
-		p[k] += prob[j]
-	}
 }
 
 // Predict writes the class probabilities of x into p (grown if short): the

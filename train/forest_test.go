@@ -78,7 +78,7 @@ func TestGolearnPredictAgrees(t *testing.T) {
 		t.Fatal(err)
 	}
 	x := make([]float64, len(ds.Names))
-	for tr := range f.Trees {
+	for tr := range f.NumTrees() {
 		node := f.DecisionTree(tr, attrs, classAttr)
 		pred, err := node.Predict(inst)
 		if err != nil {
@@ -217,7 +217,7 @@ func TestFeatureReusedDownAPath(t *testing.T) {
 	if acc < 0.95 {
 		t.Errorf("accuracy %.3f on three bands of one feature", acc)
 	}
-	tr := f.Trees[0]
+	tr := f.Tree(0)
 	root := tr.Left[0]
 	if tr.Feature[0] != 0 || (tr.Feature[root] != 0 && tr.Feature[root+1] != 0) {
 		t.Error("tree 0 does not split feature 0 twice down a path")

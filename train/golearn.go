@@ -86,7 +86,7 @@ func FromInstances(g base.FixedDataGrid) (*Dataset, error) {
 // attributes in the forest's order and classAttr the class attribute, as
 // Dataset.Instances makes them.
 func (f *Forest) DecisionTree(t int, attrs []base.Attribute, classAttr base.Attribute) *trees.DecisionTreeNode {
-	tr := f.Trees[t]
+	tr := f.Tree(t)
 	var build func(i int32) *trees.DecisionTreeNode
 	build = func(i int32) *trees.DecisionTreeNode {
 		n := &trees.DecisionTreeNode{ClassDist: map[string]int{}, ClassAttr: classAttr}
