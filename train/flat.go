@@ -94,6 +94,11 @@ func (ff *flatForest) addTree(t int, x []float64, p []float64) {
 		}
 		n = ff.nodes[next]
 	}
+	ff.addLeaf(n, p)
+}
+
+// addLeaf adds a leaf's shares to p.
+func (ff *flatForest) addLeaf(n flatNode, p []float64) {
 	if n.feature == pureLeaf {
 		p[n.child]++
 		return
@@ -151,4 +156,43 @@ func (f *Forest) Tree(t int) *Tree {
 		tr.LeafStart = append(tr.LeafStart, int32(len(tr.LeafClass)))
 	}
 	return tr
+}
+
+// lanes is how many trees addAll walks side by side. Each step of a
+// walk waits on a node that, in a long history's forest, is rarely in the
+// cache; walking trees side by side lets the processor wait for many
+// nodes at once (memory-level parallelism) instead of one after another.
+// Measured with BenchmarkPredict at 2,000 / 5,000 / 100,000 digs (one
+// run): one tree at a time 20.5 / 28.7 / 148 µs; 8 lanes 18.5 / 22.0 /
+// 51 µs; 16: 17.1 / 20.2 / 40.6; 32: 16.7 / 19.4 / 36.4; 64 and all 200
+// no better, nor skipping the lanes already at a leaf.
+const lanes = 32
+
+// addAll adds every tree's leaf shares for x to p, in tree order, as
+// adding tree by tree does: the same sums in the same order, to the bit.
+func (ff *flatForest) addAll(x []float64, p []float64) {
+	nodes := ff.nodes
+	var at [lanes]flatNode
+	for t0 := 0; t0 < len(ff.roots); t0 += lanes {
+		m := min(lanes, len(ff.roots)-t0)
+		for j := range m {
+			at[j] = nodes[ff.roots[t0+j]]
+		}
+		for more := true; more; {
+			more = false
+			for j := range m {
+				if n := at[j]; n.feature >= 0 {
+					next := n.child
+					if x[n.feature] > n.thr {
+						next++
+					}
+					at[j] = nodes[next]
+					more = true
+				}
+			}
+		}
+		for _, n := range at[:m] {
+			ff.addLeaf(n, p)
+		}
+	}
 }

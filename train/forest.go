@@ -172,9 +172,7 @@ func (f *Forest) Predict(x []float64, p []float64) []float64 {
 	}
 	p = p[:K]
 	clear(p)
-	for t := range f.flat.roots {
-		f.flat.addTree(t, x, p)
-	}
+	f.flat.addAll(x, p)
 	inv := 1 / float64(len(f.flat.roots))
 	for k := range p {
 		p[k] *= inv
