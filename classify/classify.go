@@ -46,7 +46,7 @@ func New(b *train.Bundle, values *Values) *Classifier {
 	if values == nil {
 		values = DefaultValues()
 	}
-	c := &Classifier{bundle: b, values: values, space: newSpace(b.Training.Vectors)}
+	c := &Classifier{bundle: b, values: values, space: spaceOf(b)}
 	c.reference = b.NoveltyReference
 	if c.reference == nil {
 		c.reference = c.space.referenceScores()
@@ -396,13 +396,23 @@ func (r *Result) MarshalJSON() ([]byte, error) {
 	}{r.Dig, probabilityObject(r.Ranked), (*plain)(r)})
 }
 
+// Prepare stores in b what New would otherwise compute each time the model
+// is loaded: the neighbour space's whitening and the training digs' novelty
+// reference (ReferenceScores). A command that makes a model calls it before
+// saving; the classifications are the same to the bit either way.
+func Prepare(b *train.Bundle) {
+	mean, white := whitening(b.Training.Vectors)
+	b.Whitening = &train.Whitening{Mean: mean, Matrix: white}
+	b.NoveltyReference = ReferenceScores(b)
+}
+
 // ReferenceScores are the training digs' own novelty scores (leave-one-out,
 // at most 2000 of them, sorted) that New compares each reading with. A
 // command that makes a model stores them in Bundle.NoveltyReference, so
 // that loading the model does not compute them again: at 100,000 digs that
 // took most of classify's start-up.
 func ReferenceScores(b *train.Bundle) []float64 {
-	s := newSpace(b.Training.Vectors)
+	s := spaceOf(b)
 	ref := s.referenceScores()
 	if ref == nil {
 		ref = []float64{} // stored as such: "none" is not "not computed"

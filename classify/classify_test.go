@@ -5,6 +5,9 @@ import (
 	"context"
 	"errors"
 	"math"
+	"os"
+	"path/filepath"
+	"reflect"
 	"slices"
 	"sort"
 	"strings"
@@ -143,7 +146,7 @@ func TestWhitenedDistanceIsMahalanobis(t *testing.T) {
 		u, v := p[0]*a, p[1]*b
 		vectors = append(vectors, []float64{u + v, u - v})
 	}
-	s := newSpace(vectors)
+	s := newSpace(vectors, nil)
 	w := s.standardise([]float64{1, -1}, nil)
 	if d2 := w[0]*w[0] + w[1]*w[1]; math.Abs(d2-2) > 1e-12 {
 		t.Errorf("d² = %v, want 2", d2)
@@ -403,5 +406,51 @@ func TestNoValuesNoVerdictButTheHazardCheck(t *testing.T) {
 	// The default hazards still stop the demo's projectile.
 	if !seen[VerdictNone] || !seen[VerdictDoNotDig] {
 		t.Errorf("verdicts %v", seen)
+	}
+}
+
+// TestPreparedModelClassifiesAlike: a model that stores its whitening and
+// novelty reference (Prepare, as train does) gives, through a save and a
+// load, the same results to the bit as one that computes them when loaded.
+func TestPreparedModelClassifiesAlike(t *testing.T) {
+	b, _ := demoModel(t)
+	plain := *b
+	plain.Whitening, plain.NoveltyReference = nil, nil
+	prepared := plain
+	Prepare(&prepared)
+	if prepared.Whitening == nil || len(prepared.Whitening.Matrix) != b.Spec.Len()*b.Spec.Len() {
+		t.Fatalf("whitening %+v", prepared.Whitening)
+	}
+	data, err := prepared.Marshal()
+	if err != nil {
+		t.Fatal(err)
+	}
+	loaded, err := train.Unmarshal(data)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// And as classify loads it: vectors whitened as they are read, no
+	// out-of-bag rows.
+	path := filepath.Join(t.TempDir(), "m.spade")
+	if err := os.WriteFile(path, data, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	lean, err := train.LoadWith(path, train.LoadOptions{NoOutOfBag: true, Whitened: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !lean.VectorsWhitened() || lean.Training.Flat() == nil {
+		t.Fatal("the vectors were not whitened as they loaded")
+	}
+	a := New(&plain, nil)
+	for name, other := range map[string]*train.Bundle{"loaded": loaded, "whitened as loaded": lean} {
+		c := New(other, nil)
+		for _, d := range demoReadings(t) {
+			ra, errA := a.Classify(&d)
+			rc, errC := c.Classify(&d)
+			if errA != nil || errC != nil || !reflect.DeepEqual(ra, rc) {
+				t.Fatalf("%s: reading %s: %+v against %+v", name, d.ID, ra, rc)
+			}
+		}
 	}
 }

@@ -29,7 +29,7 @@ func randomSpace(n, dims int, seed uint64, ties bool) *space {
 		}
 		vs[i] = v
 	}
-	return newSpace(vs)
+	return newSpace(vs, nil)
 }
 
 func TestIndexEqualsScan(t *testing.T) {
@@ -58,7 +58,7 @@ func TestIndexEqualsScan(t *testing.T) {
 	cases = append(cases, struct {
 		name string
 		s    *space
-	}{"simulated 6000", newSpace(vs)})
+	}{"simulated 6000", newSpace(vs, nil)})
 	r := rand.New(rand.NewPCG(9, 9))
 	for _, c := range cases {
 		s := c.s
@@ -114,7 +114,7 @@ func BenchmarkNearest(b *testing.B) {
 				vs = append(vs, v)
 			}
 		}
-		s := newSpace(vs)
+		s := newSpace(vs, nil)
 		x := newIndex(s)
 		var qs [][]float64
 		for i := range queries {

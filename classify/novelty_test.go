@@ -11,7 +11,7 @@ import (
 // unfamiliarShare is the share of query vectors a history's novelty space
 // flags unfamiliar (above the 99th percentile of its own digs' scores).
 func unfamiliarShare(history, queries [][]float64) float64 {
-	s := newSpace(history)
+	s := newSpace(history, nil)
 	ref := s.referenceScores()
 	var nb []Neighbour
 	var std []float64

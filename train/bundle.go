@@ -9,6 +9,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"hash/crc32"
 	"io"
 	"math"
 	"os"
@@ -41,9 +42,11 @@ import (
 // and columns (uvarints), then rows×columns float64 bits, little-endian,
 // read straight into one flat array. Decoding them from JSON took most of
 // a large model's load. Formats 1 and 2 still load.
+//
+// Format 4 is described in format4.go. Formats 1 to 3 still load.
 const (
 	magic         = "SPADEMDL"
-	FormatVersion = 3
+	FormatVersion = format4
 	headerLen     = 8 + 2 + 2 + 8
 	maxModelBytes = 2 << 30
 	maxTreeDepth  = 4096
@@ -93,7 +96,14 @@ type Training struct {
 	// OutOfBag are the digs' out-of-bag class probabilities (NaN-free:
 	// a dig no tree left out gets its in-bag prediction).
 	OutOfBag [][]float64 `json:"out_of_bag,omitempty"` // in the binary section from format 3
+	// flat is Vectors' one backing array, row after row, when they were
+	// loaded from format 4.
+	flat []float64
 }
+
+// Flat is the training vectors as one array, row after row, shared with
+// Vectors; nil unless they were read from a format 4 file.
+func (t *Training) Flat() []float64 { return t.flat }
 
 // Bundle is everything a model file holds.
 type Bundle struct {
@@ -115,9 +125,45 @@ type Bundle struct {
 	// that loading it need not; nil in an older model, which classify then
 	// computes them for.
 	NoveltyReference []float64 `json:"novelty_reference,omitempty"`
-	Forest           *Forest   `json:"-"`
+	// Whitening is the neighbour space's transform (classify's), computed
+	// once when the model is made, as NoveltyReference is; nil in an older
+	// model, which classify then computes it for.
+	Whitening *Whitening `json:"whitening,omitempty"`
+	Forest    *Forest    `json:"-"`
 	// Format is the format version the bundle was read from.
 	Format int `json:"-"`
+	// partial: loaded without the out-of-bag probabilities.
+	partial bool
+	// whitened: the training vectors were loaded whitened.
+	whitened bool
+}
+
+// VectorsWhitened is whether Training.Vectors hold the vectors whitened by
+// Whitening (LoadOptions.Whitened) rather than as they were.
+func (b *Bundle) VectorsWhitened() bool { return b.whitened }
+
+// Whitening maps a feature vector x into the neighbour space: Matrix·(x −
+// Mean), Matrix row-major, features × features.
+type Whitening struct {
+	Mean   []float64 `json:"mean"`
+	Matrix []float64 `json:"matrix"`
+}
+
+// Apply writes the whitened x into dst (grown if short): classify's
+// neighbour space, and the loader's when it whitens the training vectors
+// (LoadOptions.Whitened), by the same sums in the same order.
+func (w Whitening) Apply(x, dst []float64) []float64 {
+	dims := len(w.Mean)
+	dst = slices.Grow(dst[:0], dims)[:dims]
+	for r := range dims {
+		row := w.Matrix[r*dims : (r+1)*dims]
+		var v float64
+		for c, m := range row {
+			v += m * (x[c] - w.Mean[c])
+		}
+		dst[r] = v
+	}
+	return dst
 }
 
 // metadata is the JSON part, with the format version repeated for readers
@@ -136,38 +182,35 @@ func (b *Bundle) Marshal() ([]byte, error) {
 	return out.Bytes(), nil
 }
 
-// Encode writes the model file to w, hashing as it goes, so that a large
-// model is not copied whole in memory on its way to disc.
+// Encode writes the model file (format 4) to w. A bundle loaded without its
+// out-of-bag probabilities is refused.
 func (b *Bundle) Encode(w io.Writer) error {
+	if b.partial {
+		return errors.New("this model was loaded in part (for classify) and cannot be saved; load it whole")
+	}
 	lean := *b
-	lean.Training.Vectors, lean.Training.OutOfBag = nil, nil
+	lean.Training = Training{}
 	meta, err := json.Marshal(metadata{Format: FormatVersion, Bundle: &lean})
 	if err != nil {
 		return fmt.Errorf("encoding model: %w", err)
 	}
-	var forest bytes.Buffer
-	encodeForest(&forest, b.Forest)
-	screens := b.Screen.forests()
-	var buf [binary.MaxVarintLen64]byte
-	forest.Write(buf[:binary.PutUvarint(buf[:], uint64(len(screens)))])
-	for _, f := range screens {
-		encodeForest(&forest, f)
-	}
-	encodeMatrix(&forest, b.Training.Vectors, b.Spec.Len())
-	encodeMatrix(&forest, b.Training.OutOfBag, len(b.Classes))
-	h := sha256.New()
-	hw := io.MultiWriter(w, h)
+	var rest bytes.Buffer
+	encode4(&rest, b)
+	sum := newChecksum4()
+	hw := io.MultiWriter(w, sum)
 	var head [headerLen + 4]byte
 	copy(head[:], magic)
 	binary.LittleEndian.PutUint16(head[8:], FormatVersion)
-	binary.LittleEndian.PutUint64(head[12:], uint64(4+len(meta)+forest.Len()))
+	binary.LittleEndian.PutUint64(head[12:], uint64(4+len(meta)+rest.Len()))
 	binary.LittleEndian.PutUint32(head[headerLen:], uint32(len(meta)))
-	for _, part := range [][]byte{head[:], meta, forest.Bytes()} {
+	for _, part := range [][]byte{head[:], meta, rest.Bytes()} {
 		if _, err := hw.Write(part); err != nil {
 			return err
 		}
 	}
-	_, err = w.Write(h.Sum(nil))
+	var trailer [checksum4Len]byte
+	binary.LittleEndian.PutUint32(trailer[:], sum.Sum32())
+	_, err = w.Write(trailer[:])
 	return err
 }
 
@@ -187,7 +230,11 @@ func (b *Bundle) SaveContext(ctx context.Context, path string) error {
 }
 
 // Load reads and checks a model file.
-func Load(path string) (*Bundle, error) {
+func Load(path string) (*Bundle, error) { return LoadWith(path, LoadOptions{}) }
+
+// LoadWith is Load that may leave parts out. A format 4 file is streamed
+// through its checksum in one pass, never held whole in memory.
+func LoadWith(path string, o LoadOptions) (*Bundle, error) {
 	f, err := os.Open(path)
 	if err != nil {
 		return nil, fmt.Errorf("cannot read model %s: %w", path, features.PathCause(err))
@@ -199,24 +246,44 @@ func Load(path string) (*Bundle, error) {
 	if _, err := io.ReadFull(f, head[:]); err != nil || string(head[:len(magic)]) != magic {
 		return nil, fmt.Errorf("%s: %w", path, ErrNotModel)
 	}
+	if err := checkVersion(head[:]); err != nil {
+		return nil, fmt.Errorf("%s: %w", path, err)
+	}
 	plen := binary.LittleEndian.Uint64(head[12:])
 	if plen > maxModelBytes {
 		return nil, fmt.Errorf("%s: %w: payload of %d bytes is larger than any model", path, ErrCorrupt, plen)
 	}
-	rest, err := io.ReadAll(io.LimitReader(f, int64(plen)+sha256.Size+1))
-	if err != nil {
-		return nil, fmt.Errorf("cannot read model %s: %w", path, features.PathCause(err))
+	var b *Bundle
+	if binary.LittleEndian.Uint16(head[8:]) == format4 {
+		b, err = load4(head[:], f, plen, o)
+	} else {
+		var rest []byte
+		rest, err = io.ReadAll(io.LimitReader(f, int64(plen)+sha256.Size+1))
+		if err != nil {
+			return nil, fmt.Errorf("cannot read model %s: %w", path, features.PathCause(err))
+		}
+		b, err = unmarshal(append(head[:], rest...), o)
 	}
-	b, err := Unmarshal(append(head[:], rest...))
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", path, err)
 	}
 	return b, nil
 }
 
+// checkVersion refuses a format this spade does not read.
+func checkVersion(head []byte) error {
+	version := binary.LittleEndian.Uint16(head[8:])
+	if version < 1 || version > FormatVersion {
+		return fmt.Errorf("%w: the file has format %d, this spade reads formats 1 to %d; train the model again with this spade", ErrVersion, version, FormatVersion)
+	}
+	return nil
+}
+
 // Unmarshal decodes and checks a model file's bytes. Any malformed input is
 // an error wrapping ErrNotModel, ErrVersion or ErrCorrupt, never a panic.
-func Unmarshal(data []byte) (b *Bundle, err error) {
+func Unmarshal(data []byte) (*Bundle, error) { return unmarshal(data, LoadOptions{}) }
+
+func unmarshal(data []byte, o LoadOptions) (b *Bundle, err error) {
 	defer func() {
 		if r := recover(); r != nil {
 			b, err = nil, fmt.Errorf("%w: %v", ErrCorrupt, r)
@@ -225,22 +292,35 @@ func Unmarshal(data []byte) (b *Bundle, err error) {
 	if len(data) < len(magic) || string(data[:len(magic)]) != magic {
 		return nil, ErrNotModel
 	}
-	if len(data) < headerLen+sha256.Size {
+	if len(data) < headerLen {
 		return nil, fmt.Errorf("%w: truncated (%d bytes)", ErrCorrupt, len(data))
 	}
+	if err := checkVersion(data); err != nil {
+		return nil, err
+	}
 	version := binary.LittleEndian.Uint16(data[8:])
-	if version < 1 || version > FormatVersion {
-		return nil, fmt.Errorf("%w: the file has format %d, this spade reads formats 1 to %d; train the model again with this spade", ErrVersion, version, FormatVersion)
+	sumLen := sha256.Size
+	if version == format4 {
+		sumLen = checksum4Len
+	}
+	if len(data) < headerLen+sumLen {
+		return nil, fmt.Errorf("%w: truncated (%d bytes)", ErrCorrupt, len(data))
 	}
 	plen := binary.LittleEndian.Uint64(data[12:])
-	if plen != uint64(len(data)-headerLen-sha256.Size) {
-		return nil, fmt.Errorf("%w: truncated or padded (payload %d bytes, file has room for %d)", ErrCorrupt, plen, len(data)-headerLen-sha256.Size)
+	if plen != uint64(len(data)-headerLen-sumLen) {
+		return nil, fmt.Errorf("%w: truncated or padded (payload %d bytes, file has room for %d)", ErrCorrupt, plen, len(data)-headerLen-sumLen)
 	}
-	body := data[:len(data)-sha256.Size]
+	body := data[:len(data)-sumLen]
+	payload := body[headerLen:]
+	if version == format4 {
+		if crc32.Checksum(body, castagnoli) != binary.LittleEndian.Uint32(data[len(body):]) {
+			return nil, fmt.Errorf("%w: checksum mismatch", ErrCorrupt)
+		}
+		return decode4(&decoder{r: bytes.NewReader(payload), left: uint64(len(payload))}, o)
+	}
 	if sum := sha256.Sum256(body); !bytes.Equal(sum[:], data[len(body):]) {
 		return nil, fmt.Errorf("%w: checksum mismatch", ErrCorrupt)
 	}
-	payload := body[headerLen:]
 	if len(payload) < 4 {
 		return nil, fmt.Errorf("%w: no metadata", ErrCorrupt)
 	}
@@ -248,18 +328,8 @@ func Unmarshal(data []byte) (b *Bundle, err error) {
 	if uint64(mlen) > uint64(len(payload)-4) {
 		return nil, fmt.Errorf("%w: metadata length %d past the end", ErrCorrupt, mlen)
 	}
-	b = &Bundle{Format: int(version)}
-	meta := metadata{Bundle: b}
-	dec := json.NewDecoder(bytes.NewReader(payload[4 : 4+mlen]))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&meta); err != nil {
-		return nil, fmt.Errorf("%w: metadata: %w", ErrCorrupt, err)
-	}
-	if meta.Format != int(version) {
-		return nil, fmt.Errorf("%w: the metadata says format %d, the header %d", ErrCorrupt, meta.Format, version)
-	}
-	if err := b.validateHead(); err != nil {
-		return nil, fmt.Errorf("%w: %w", ErrCorrupt, err)
+	if b, err = decodeMetadata(payload[4:4+mlen], int(version)); err != nil {
+		return nil, err
 	}
 	rest := bytes.NewReader(payload[4+mlen:])
 	forest, err := decodeForest(rest, b.Spec.Len(), len(b.Classes))
@@ -286,8 +356,38 @@ func Unmarshal(data []byte) (b *Bundle, err error) {
 	if rest.Len() != 0 {
 		return nil, fmt.Errorf("%w: %d bytes after the last section", ErrCorrupt, rest.Len())
 	}
-	if err := b.validate(); err != nil {
+	if err := b.finish(forest); err != nil {
+		return nil, err
+	}
+	if o.NoOutOfBag {
+		b.Training.OutOfBag, b.partial = nil, true
+	}
+	return b, nil
+}
+
+// decodeMetadata reads the JSON part and checks what decoding the forests
+// needs.
+func decodeMetadata(data []byte, version int) (*Bundle, error) {
+	b := &Bundle{Format: version}
+	meta := metadata{Bundle: b}
+	dec := json.NewDecoder(bytes.NewReader(data))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&meta); err != nil {
+		return nil, fmt.Errorf("%w: metadata: %w", ErrCorrupt, err)
+	}
+	if meta.Format != version {
+		return nil, fmt.Errorf("%w: the metadata says format %d, the header %d", ErrCorrupt, meta.Format, version)
+	}
+	if err := b.validateHead(); err != nil {
 		return nil, fmt.Errorf("%w: %w", ErrCorrupt, err)
+	}
+	return b, nil
+}
+
+// finish checks the whole bundle and gives the forest its names.
+func (b *Bundle) finish(forest *Forest) error {
+	if err := b.validate(); err != nil {
+		return fmt.Errorf("%w: %w", ErrCorrupt, err)
 	}
 	forest.Names, forest.Classes, forest.Mtry = b.Spec.Names, b.Classes, b.Summary.Mtry
 	forest.Importance = make([]float64, len(b.Spec.Names))
@@ -295,7 +395,7 @@ func Unmarshal(data []byte) (b *Bundle, err error) {
 		forest.Importance[i] = b.Summary.Importance[n]
 	}
 	b.Forest = forest
-	return b, nil
+	return nil
 }
 
 // validateHead checks what decoding the forests needs: the spec, the label
@@ -316,6 +416,24 @@ func (b *Bundle) validateHead() error {
 	return nil
 }
 
+// validateWhitening checks the whitening, when there is one, against the
+// spec.
+func (b *Bundle) validateWhitening() error {
+	w, p := b.Whitening, b.Spec.Len()
+	if w == nil {
+		return nil
+	}
+	if len(w.Mean) != p || len(w.Matrix) != p*p {
+		return errors.New("whitening malformed")
+	}
+	for _, v := range append(slices.Clone(w.Mean), w.Matrix...) {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return errors.New("whitening not finite")
+		}
+	}
+	return nil
+}
+
 // validate checks the whole bundle.
 func (b *Bundle) validate() error {
 	if err := b.validateHead(); err != nil {
@@ -326,11 +444,11 @@ func (b *Bundle) validate() error {
 	if n == 0 {
 		return errors.New("no training digs")
 	}
-	if len(t.IDs) != n || len(t.Dates) != n || len(t.Vectors) != n || len(t.OutOfBag) != n {
+	if len(t.IDs) != n || len(t.Dates) != n || len(t.Vectors) != n || len(t.OutOfBag) != n && !(b.partial && t.OutOfBag == nil) {
 		return errors.New("training arrays differ in length")
 	}
 	for i := range n {
-		if t.Y[i] < 0 || int(t.Y[i]) >= K || len(t.Vectors[i]) != p || len(t.OutOfBag[i]) != K {
+		if t.Y[i] < 0 || int(t.Y[i]) >= K || len(t.Vectors[i]) != p || t.OutOfBag != nil && len(t.OutOfBag[i]) != K {
 			return fmt.Errorf("training row %d malformed", i)
 		}
 	}
@@ -344,6 +462,9 @@ func (b *Bundle) validate() error {
 			}
 		}
 	}
+	if err := b.validateWhitening(); err != nil {
+		return err
+	}
 	if b.Baseline != nil {
 		if len(b.Baseline.Shares) != len(b.Baseline.Cuts)+1 {
 			return errors.New("baseline bins malformed")
@@ -355,35 +476,6 @@ func (b *Bundle) validate() error {
 		}
 	}
 	return nil
-}
-
-func encodeForest(w *bytes.Buffer, f *Forest) {
-	var buf [binary.MaxVarintLen64]byte
-	uv := func(v uint64) { w.Write(buf[:binary.PutUvarint(buf[:], v)]) }
-	uv(uint64(f.NumTrees()))
-	for ti := range f.NumTrees() {
-		t := f.Tree(ti)
-		uv(uint64(t.Nodes()))
-		var walk func(i int32)
-		walk = func(i int32) {
-			if t.Feature[i] < 0 {
-				w.WriteByte(1)
-				l := t.Left[i]
-				uv(uint64(t.LeafStart[l+1] - t.LeafStart[l]))
-				for j := t.LeafStart[l]; j < t.LeafStart[l+1]; j++ {
-					uv(uint64(t.LeafClass[j]))
-					uv(uint64(t.LeafCount[j]))
-				}
-				return
-			}
-			w.WriteByte(0)
-			uv(uint64(t.Feature[i]))
-			binary.Write(w, binary.LittleEndian, math.Float64bits(t.Threshold[i]))
-			walk(t.Left[i])
-			walk(t.Left[i] + 1)
-		}
-		walk(0)
-	}
 }
 
 // forestReader decodes with every count and index checked against what the
@@ -410,12 +502,31 @@ func (fr *forestReader) uvarint(limit uint64, what string) uint64 {
 	return v
 }
 
-// decodeScreen reads the screen's forests, checked against its metadata.
+// decodeScreen reads a format 2 or 3 screen's forests, checked against its
+// metadata.
 func (b *Bundle) decodeScreen(r *bytes.Reader) error {
 	n, err := binary.ReadUvarint(r)
 	if err != nil {
 		return err
 	}
+	parts, err := b.screenParts(n)
+	if err != nil {
+		return err
+	}
+	for _, sf := range parts {
+		f, err := decodeForest(r, len(sf.Names), screenClasses)
+		if err != nil {
+			return err
+		}
+		f.Names, f.Classes = sf.Names, screenClassNames
+		sf.forest = f
+	}
+	return nil
+}
+
+// screenParts checks that the file's n screen forests are what the screen's
+// metadata describes, and gives the parts they belong to.
+func (b *Bundle) screenParts(n uint64) ([]*ScreenForest, error) {
 	s := b.Screen
 	want := 0
 	if s != nil {
@@ -425,26 +536,20 @@ func (b *Bundle) decodeScreen(r *bytes.Reader) error {
 		}
 	}
 	if n != uint64(want) {
-		return fmt.Errorf("%d screen forests, the metadata describes %d", n, want)
+		return nil, fmt.Errorf("%d screen forests, the metadata describes %d", n, want)
 	}
 	if s == nil {
-		return nil
+		return nil, nil
 	}
 	for _, sf := range s.parts() {
 		if len(sf.Names) < b.Spec.Len() || !slices.Equal(sf.Names[:b.Spec.Len()], b.Spec.Names) {
-			return errors.New("screen features do not match the model's")
+			return nil, errors.New("screen features do not match the model's")
 		}
 		if !(sf.Low > 0 && sf.Low <= sf.High && sf.High <= 1) || sf.Likely != (sf != &s.Plain) {
-			return fmt.Errorf("screen tiers %v and %v out of order", sf.Low, sf.High)
+			return nil, fmt.Errorf("screen tiers %v and %v out of order", sf.Low, sf.High)
 		}
-		f, err := decodeForest(r, len(sf.Names), screenClasses)
-		if err != nil {
-			return err
-		}
-		f.Names, f.Classes = sf.Names, screenClassNames
-		sf.forest = f
 	}
-	return nil
+	return s.parts(), nil
 }
 
 func decodeForest(r *bytes.Reader, features, classes int) (*Forest, error) {
@@ -523,7 +628,11 @@ func decodeForest(r *bytes.Reader, features, classes int) (*Forest, error) {
 		}
 		trees = append(trees, t)
 	}
-	return &Forest{flat: compile(trees, classes)}, nil
+	flat, err := compile(trees, classes)
+	if err != nil {
+		return nil, err
+	}
+	return &Forest{flat: flat}, nil
 }
 
 func sha256Sum(b []byte) [32]byte { return sha256.Sum256(b) }

@@ -3,7 +3,9 @@ package train
 import (
 	"bytes"
 	"context"
+	"encoding/binary"
 	"errors"
+	"hash/crc32"
 	"io"
 	"math"
 	"os"
@@ -109,8 +111,8 @@ func TestInterruptedSaveKeepsPreviousModel(t *testing.T) {
 	}
 }
 
-// resign wraps a payload in a valid header and checksum, so the fuzzer gets
-// past the checksum to the decoders.
+// resign wraps a payload in a valid format 4 header and checksum, so the
+// fuzzer gets past the checksum to the decoders.
 func resign(payload []byte) []byte {
 	var out bytes.Buffer
 	out.WriteString(magic)
@@ -121,9 +123,7 @@ func resign(payload []byte) []byte {
 		n >>= 8
 	}
 	out.Write(payload)
-	sum := sha256Sum(out.Bytes())
-	out.Write(sum[:])
-	return out.Bytes()
+	return binary.LittleEndian.AppendUint32(out.Bytes(), crc32.Checksum(out.Bytes(), castagnoli))
 }
 
 func FuzzUnmarshal(f *testing.F) {
@@ -150,6 +150,7 @@ func FuzzUnmarshal(f *testing.F) {
 	}
 	screened, _ := small.Marshal()
 	f.Add(screened)
+	f.Add(encodeV3(small))
 	f.Add(good[:len(good)/2])
 	f.Add(good[headerLen : len(good)-32])
 	f.Add([]byte("SPADEMDL"))

@@ -1,15 +1,20 @@
 package train
 
+import (
+	"fmt"
+	"math"
+)
+
 // flatForest is the forest as it is kept once grown or loaded: every tree's
-// nodes in one array of 16-byte nodes (a node visited is one cache line
+// nodes in one array of 12-byte nodes (a node visited is one cache line
 // touched, where three parallel arrays cost three). A fully grown tree's
 // leaves are pure (at 100,000 digs, all 2.2 million of them were), so a
 // pure leaf is a node of its own kind holding its class and its count, and
 // only a mixed leaf (a minimum leaf size above one, or a depth limit) has
 // (class, count, share) triples in the leaf arrays. The grown Trees are not
 // kept: at 100,000 digs they doubled the memory of a loaded model, and
-// everything they told (golearn's trees, the model file) is rebuilt from
-// this form.
+// everything they told (golearn's trees, older model files) is rebuilt
+// from this form. Model format 4 stores this form as it is.
 type flatForest struct {
 	K     int
 	roots []int32 // tree t is nodes[roots[t]:roots[t+1]], the last ending at len(nodes)
@@ -21,24 +26,58 @@ type flatForest struct {
 	leafProb  []float64
 }
 
-// flatNode is a split, a pure leaf or a mixed leaf, by feature:
+// flatNode is a split, a pure leaf or a mixed leaf, in 12 bytes (16 with a
+// float64 field, for Go aligns it: at 100,000 digs the 4.3 million nodes
+// took 69 MB, now 52). kc holds the kind in its top kindBits bits and a
+// number in the rest:
 //
-//	feature >= 0: a split; go to child, or child+1 when x[feature] > thr
-//	feature == -1: a pure leaf of class child, thr its count (a whole number)
-//	feature <= -2: a mixed leaf of -feature shares from child in the leaf arrays
+//	kind < leafKind: a split on feature kind; lo, hi are the threshold's
+//	    float64 bits (low, high word); go to the tree's node (the rest),
+//	    or the one after it when x[kind] > threshold
+//	kind == leafKind, rest 0: a pure leaf of class lo, hi its count
+//	kind == leafKind, rest 1: a mixed leaf of hi shares from lo in the
+//	    leaf arrays
+//
+// A node's child is counted from its tree's root, so a forest of any size
+// fits; one tree holds at most maxTreeNodes nodes and a forest splits on
+// at most maxFeatures features.
 type flatNode struct {
-	thr     float64
-	feature int32
-	child   int32
+	lo, hi, kc uint32
 }
 
-// pureLeaf marks a pure leaf in flatNode.feature.
-const pureLeaf = -1
+const (
+	kindBits     = 9
+	restBits     = 32 - kindBits
+	restMask     = 1<<restBits - 1
+	leafKind     = 1<<kindBits - 1
+	maxFeatures  = leafKind      // 511 features: 127 frequencies of four
+	maxTreeNodes = 1 << restBits // 8.4 million nodes: a bootstrap of some 6 million digs
+	pureKC       = leafKind << restBits
+	mixedKC      = pureKC | 1
+)
 
-// compile lays grown trees out flat, sized exactly up front.
-func compile(trees []*Tree, K int) *flatForest {
+// errTooLarge is a forest that does not fit the compiled form.
+var errTooLarge = fmt.Errorf("train: a forest splits on at most %d features and a tree holds at most %d nodes; train with fewer frequencies or a smaller bootstrap", maxFeatures, maxTreeNodes)
+
+func splitNode(feature int32, thr float64, child int32) flatNode {
+	b := math.Float64bits(thr)
+	return flatNode{lo: uint32(b), hi: uint32(b >> 32), kc: uint32(feature)<<restBits | uint32(child)}
+}
+
+func (n flatNode) kind() uint32 { return n.kc >> restBits }
+func (n flatNode) rest() int32  { return int32(n.kc & restMask) }
+func (n flatNode) thr() float64 { return math.Float64frombits(uint64(n.hi)<<32 | uint64(n.lo)) }
+
+// compile lays grown trees out flat, sized exactly up front, each tree in
+// breadth-first order: the k-th split's children are its tree's nodes
+// 2k+1 and 2k+2. That is the only layout a model file may hold, which
+// makes checking a loaded forest one pass with a counter (see check).
+func compile(trees []*Tree, K int) (*flatForest, error) {
 	nodes, mixed := 0, 0
 	for _, t := range trees {
+		if t.Nodes() > maxTreeNodes {
+			return nil, errTooLarge
+		}
 		nodes += t.Nodes()
 		for l := range len(t.LeafStart) - 1 {
 			if n := int(t.LeafStart[l+1] - t.LeafStart[l]); n > 1 {
@@ -48,12 +87,18 @@ func compile(trees []*Tree, K int) *flatForest {
 	}
 	ff := &flatForest{K: K, roots: make([]int32, 0, len(trees)), nodes: make([]flatNode, 0, nodes),
 		leafCls: make([]int32, 0, mixed), leafCount: make([]int32, 0, mixed), leafProb: make([]float64, 0, mixed)}
+	var order []int32 // the grown tree's nodes, breadth first
 	for _, t := range trees {
-		base := int32(len(ff.nodes))
-		ff.roots = append(ff.roots, base)
-		for i := range t.Feature {
-			if t.Feature[i] >= 0 {
-				ff.nodes = append(ff.nodes, flatNode{thr: t.Threshold[i], feature: t.Feature[i], child: base + t.Left[i]})
+		ff.roots = append(ff.roots, int32(len(ff.nodes)))
+		order = append(order[:0], 0)
+		for q := 0; q < len(order); q++ {
+			i := order[q]
+			if f := t.Feature[i]; f >= 0 {
+				if f >= maxFeatures {
+					return nil, errTooLarge
+				}
+				ff.nodes = append(ff.nodes, splitNode(f, t.Threshold[i], int32(len(order))))
+				order = append(order, t.Left[i], t.Left[i]+1)
 				continue
 			}
 			l := t.Left[i]
@@ -61,35 +106,43 @@ func compile(trees []*Tree, K int) *flatForest {
 			ff.nodes = append(ff.nodes, ff.leaf(t.LeafClass[lo:hi], t.LeafCount[lo:hi]))
 		}
 	}
-	return ff
+	return ff, nil
 }
 
 // leaf makes the node of a leaf with these (class, count) pairs, adding a
-// mixed leaf's shares to the leaf arrays. A share is count over the leaf's
-// total, summed in class order: a pure leaf's share is exactly 1.
+// mixed leaf's shares to the leaf arrays.
 func (ff *flatForest) leaf(cls, counts []int32) flatNode {
 	if len(cls) == 1 {
-		return flatNode{thr: float64(counts[0]), feature: pureLeaf, child: cls[0]}
+		return flatNode{lo: uint32(cls[0]), hi: uint32(counts[0]), kc: pureKC}
 	}
+	start := uint32(len(ff.leafCls))
+	ff.leafCls = append(ff.leafCls, cls...)
+	ff.leafCount = append(ff.leafCount, counts...)
+	ff.leafProb = append(ff.leafProb, shares(counts)...)
+	return flatNode{lo: start, hi: uint32(len(cls)), kc: mixedKC}
+}
+
+// shares are counts over their total, summed in class order: a pure
+// leaf's share is exactly 1.
+func shares(counts []int32) []float64 {
 	var tot float64
 	for _, c := range counts {
 		tot += float64(c)
 	}
-	start := int32(len(ff.leafCls))
+	p := make([]float64, len(counts))
 	for j, c := range counts {
-		ff.leafCls = append(ff.leafCls, cls[j])
-		ff.leafCount = append(ff.leafCount, c)
-		ff.leafProb = append(ff.leafProb, float64(c)/tot)
+		p[j] = float64(c) / tot
 	}
-	return flatNode{feature: -int32(len(cls)), child: start}
+	return p
 }
 
 // addTree adds tree t's leaf shares for x to p.
 func (ff *flatForest) addTree(t int, x []float64, p []float64) {
-	n := ff.nodes[ff.roots[t]]
-	for n.feature >= 0 {
-		next := n.child
-		if x[n.feature] > n.thr {
+	root := ff.roots[t]
+	n := ff.nodes[root]
+	for k := n.kind(); k < leafKind; k = n.kind() {
+		next := root + n.rest()
+		if x[k] > n.thr() {
 			next++
 		}
 		n = ff.nodes[next]
@@ -99,12 +152,11 @@ func (ff *flatForest) addTree(t int, x []float64, p []float64) {
 
 // addLeaf adds a leaf's shares to p.
 func (ff *flatForest) addLeaf(n flatNode, p []float64) {
-	if n.feature == pureLeaf {
-		p[n.child]++
+	if n.kc == pureKC {
+		p[n.lo]++
 		return
 	}
-	end := n.child - n.feature
-	cls, prob := ff.leafCls[n.child:end], ff.leafProb[n.child:end]
+	cls, prob := ff.leafCls[n.lo:n.lo+n.hi], ff.leafProb[n.lo:n.lo+n.hi]
 	for j, k := range cls {
 		p[k] += prob[j]
 	}
@@ -121,11 +173,10 @@ func (ff *flatForest) span(t int) (lo, hi int32) {
 
 // leafCounts are a leaf node's (class, count) pairs.
 func (ff *flatForest) leafCounts(n flatNode) (cls, counts []int32) {
-	if n.feature == pureLeaf {
-		return []int32{n.child}, []int32{int32(n.thr)}
+	if n.kc == pureKC {
+		return []int32{int32(n.lo)}, []int32{int32(n.hi)}
 	}
-	end := n.child - n.feature
-	return ff.leafCls[n.child:end], ff.leafCount[n.child:end]
+	return ff.leafCls[n.lo : n.lo+n.hi], ff.leafCount[n.lo : n.lo+n.hi]
 }
 
 // NumTrees is the number of trees.
@@ -141,10 +192,10 @@ func (f *Forest) Tree(t int) *Tree {
 	lo, hi := ff.span(t)
 	tr := &Tree{LeafStart: []int32{0}}
 	for _, n := range ff.nodes[lo:hi] {
-		if n.feature >= 0 {
-			tr.Feature = append(tr.Feature, n.feature)
-			tr.Threshold = append(tr.Threshold, n.thr)
-			tr.Left = append(tr.Left, n.child-lo)
+		if k := n.kind(); k < leafKind {
+			tr.Feature = append(tr.Feature, int32(k))
+			tr.Threshold = append(tr.Threshold, n.thr())
+			tr.Left = append(tr.Left, n.rest())
 			continue
 		}
 		cls, counts := ff.leafCounts(n)
@@ -173,17 +224,19 @@ const lanes = 32
 func (ff *flatForest) addAll(x []float64, p []float64) {
 	nodes := ff.nodes
 	var at [lanes]flatNode
+	var root [lanes]int32
 	for t0 := 0; t0 < len(ff.roots); t0 += lanes {
 		m := min(lanes, len(ff.roots)-t0)
 		for j := range m {
-			at[j] = nodes[ff.roots[t0+j]]
+			root[j] = ff.roots[t0+j]
+			at[j] = nodes[root[j]]
 		}
 		for more := true; more; {
 			more = false
 			for j := range m {
-				if n := at[j]; n.feature >= 0 {
-					next := n.child
-					if x[n.feature] > n.thr {
+				if n := at[j]; n.kind() < leafKind {
+					next := root[j] + n.rest()
+					if x[n.kind()] > n.thr() {
 						next++
 					}
 					at[j] = nodes[next]

@@ -67,9 +67,9 @@ func TestTreeRebuiltFromFlat(t *testing.T) {
 			x = ds.Row(i, x)
 			l := tree.Leaf(x)
 			n := f.flat.nodes[lo]
-			for n.feature >= 0 {
-				next := n.child
-				if x[n.feature] > n.thr {
+			for n.kind() < leafKind {
+				next := lo + n.rest()
+				if x[n.kind()] > n.thr() {
 					next++
 				}
 				n = f.flat.nodes[next]

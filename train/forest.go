@@ -122,7 +122,11 @@ func Grow(ctx context.Context, ds *Dataset, o Options) (*Forest, [][]float64, er
 			f.Importance[j] /= tot
 		}
 	}
-	f.flat = compile(grown, K)
+	flat, err := compile(grown, K)
+	if err != nil {
+		return nil, nil, err
+	}
+	f.flat = flat
 	return f, f.outOfBag(ds, o), nil
 }
 

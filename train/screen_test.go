@@ -7,7 +7,6 @@ import (
 	"encoding/json"
 	"errors"
 	"math"
-	"reflect"
 	"slices"
 	"testing"
 
@@ -122,10 +121,19 @@ func encodeV1(b *Bundle) []byte {
 // after the history's.
 func encodeV2(b *Bundle) []byte { return encodeOld(b, 2) }
 
-// encodeOld writes format 1 or 2: the training vectors and out-of-bag rows
-// in the JSON, and (format 2) the screen's forests after the history's.
+// encodeV3 writes a bundle as spade wrote format 3: the training vectors
+// and out-of-bag rows in a binary section after the forests.
+func encodeV3(b *Bundle) []byte { return encodeOld(b, 3) }
+
+// encodeOld writes format 1, 2 or 3: the training digs in the JSON (format
+// 3: but for the vectors and out-of-bag rows, in a binary section), and
+// from format 2 the screen's forests after the history's.
 func encodeOld(b *Bundle, version uint16) []byte {
-	meta, _ := json.Marshal(metadata{Format: int(version), Bundle: b})
+	lean := *b
+	if version >= 3 {
+		lean.Training.Vectors, lean.Training.OutOfBag = nil, nil
+	}
+	meta, _ := json.Marshal(metadata{Format: int(version), Bundle: &lean})
 	var forest bytes.Buffer
 	encodeForest(&forest, b.Forest)
 	if version >= 2 {
@@ -134,6 +142,10 @@ func encodeOld(b *Bundle, version uint16) []byte {
 		for _, f := range screens {
 			encodeForest(&forest, f)
 		}
+	}
+	if version >= 3 {
+		encodeMatrix(&forest, b.Training.Vectors, b.Spec.Len())
+		encodeMatrix(&forest, b.Training.OutOfBag, len(b.Classes))
 	}
 	var out bytes.Buffer
 	out.WriteString(magic)
@@ -192,7 +204,7 @@ func TestFormat2And3HoldTheSameTraining(t *testing.T) {
 		if err != nil {
 			t.Fatalf("%s: %v", name, err)
 		}
-		if !reflect.DeepEqual(got.Training, b.Training) {
+		if !sameTraining(&got.Training, &b.Training) {
 			t.Errorf("%s: training differs", name)
 		}
 	}

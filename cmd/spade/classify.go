@@ -8,6 +8,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"runtime/debug"
 	"slices"
 	"strconv"
 	"strings"
@@ -97,7 +98,10 @@ func runClassify(ctx context.Context, g *globalOptions, opts classifyOptions, ar
 	case opts.top < 1:
 		return usagef("--top must be at least 1, got %d", opts.top)
 	}
-	bundle, err := train.Load(opts.model)
+	// classify needs no out-of-bag rows (10 MB at 100,000 digs) and reads
+	// the training vectors only whitened: they are whitened as they load,
+	// in place, rather than copied.
+	bundle, err := train.LoadWith(opts.model, train.LoadOptions{NoOutOfBag: true, Whitened: true})
 	if err != nil {
 		return err
 	}
@@ -109,6 +113,10 @@ func runClassify(ctx context.Context, g *globalOptions, opts classifyOptions, ar
 		return err
 	}
 	c := classify.New(bundle, vals)
+	// The garbage collector runs at a quarter of the live heap over it (not
+	// the whole), so that a long run stays near what it keeps: at 100,000
+	// digs a 10,000-reading run peaked at 180 MB, 120 with this.
+	debug.SetGCPercent(25)
 	next, name, closer, err := readingSource(g, opts, args)
 	if err != nil {
 		return err

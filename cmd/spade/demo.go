@@ -108,7 +108,7 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 		err = bundle.AddScreen(ctx, log, train.ScreenOptions{Seed: opts.seed, Progress: step})
 	}
 	if err == nil {
-		bundle.NoveltyReference = classify.ReferenceScores(bundle)
+		classify.Prepare(bundle)
 	}
 	bar.done()
 	if err != nil {

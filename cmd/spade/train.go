@@ -88,7 +88,7 @@ func runTrain(ctx context.Context, g *globalOptions, opts trainOptions, args []s
 	if err != nil {
 		return err
 	}
-	bundle.NoveltyReference = classify.ReferenceScores(bundle)
+	classify.Prepare(bundle)
 	if opts.output == "-" {
 		// The model goes to standard output; the report, to stderr.
 		bw := bufio.NewWriter(g.stdout)
