@@ -68,10 +68,12 @@ func (n flatNode) kind() uint32 { return n.kc >> restBits }
 func (n flatNode) rest() int32  { return int32(n.kc & restMask) }
 func (n flatNode) thr() float64 { return math.Float64frombits(uint64(n.hi)<<32 | uint64(n.lo)) }
 
-// compile lays grown trees out flat, sized exactly up front, each tree in
-// breadth-first order: the k-th split's children are its tree's nodes
-// 2k+1 and 2k+2. That is the only layout a model file may hold, which
-// makes checking a loaded forest one pass with a counter (see check).
+// compile lays grown trees out flat, sized exactly up front, in the grown
+// trees' own order: a split's two children side by side, a subtree's nodes
+// near one another (grown depth first). Laid out breadth first instead
+// (which would make a loaded tree checkable with a counter), prediction at
+// 100,000 digs took 50 µs instead of 38-40 in one run: the deep levels of a
+// walk then fall in lines of their own.
 func compile(trees []*Tree, K int) (*flatForest, error) {
 	nodes, mixed := 0, 0
 	for _, t := range trees {
@@ -87,18 +89,14 @@ func compile(trees []*Tree, K int) (*flatForest, error) {
 	}
 	ff := &flatForest{K: K, roots: make([]int32, 0, len(trees)), nodes: make([]flatNode, 0, nodes),
 		leafCls: make([]int32, 0, mixed), leafCount: make([]int32, 0, mixed), leafProb: make([]float64, 0, mixed)}
-	var order []int32 // the grown tree's nodes, breadth first
 	for _, t := range trees {
 		ff.roots = append(ff.roots, int32(len(ff.nodes)))
-		order = append(order[:0], 0)
-		for q := 0; q < len(order); q++ {
-			i := order[q]
+		for i := range t.Feature {
 			if f := t.Feature[i]; f >= 0 {
 				if f >= maxFeatures {
 					return nil, errTooLarge
 				}
-				ff.nodes = append(ff.nodes, splitNode(f, t.Threshold[i], int32(len(order))))
-				order = append(order, t.Left[i], t.Left[i]+1)
+				ff.nodes = append(ff.nodes, splitNode(f, t.Threshold[i], t.Left[i]))
 				continue
 			}
 			l := t.Left[i]

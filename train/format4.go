@@ -10,7 +10,9 @@ import (
 	"hash/crc32"
 	"io"
 	"math"
+	"runtime"
 	"strings"
+	"sync"
 	"unicode/utf8"
 )
 
@@ -28,7 +30,7 @@ import (
 // A forest is its tree, node and mixed-leaf-share counts (uvarints), each
 // tree's first node (uint32), the mixed leaves' (class, count) pairs (two
 // uint32s) and the nodes as they are kept in memory (three uint32s: see
-// flatNode), each tree breadth first (see compile). A string list is each string's length (uvarints) and then all
+// flatNode). A string list is each string's length (uvarints) and then all
 // their bytes. A matrix is as in format 3. All integers are little-endian.
 //
 // The checksum is CRC-32C rather than format 3's SHA-256: it is there to
@@ -194,7 +196,7 @@ func decodeFlat(d *decoder, features, K int) (*flatForest, error) {
 		return nil, fmt.Errorf("%d trees of %d nodes do not fit in the %d bytes left", trees, nodes, d.left)
 	}
 	ff := &flatForest{K: K, roots: make([]int32, 0, trees), nodes: make([]flatNode, 0, nodes),
-		leafCls: make([]int32, 0, mixed), leafCount: make([]int32, 0, mixed), leafProb: make([]float64, 0, mixed)}
+		leafCls: make([]int32, 0, mixed), leafCount: make([]int32, 0, mixed)}
 	err = d.readUnits(4*trees, 4, func(p []byte) {
 		for i := 0; i < len(p); i += 4 {
 			ff.roots = append(ff.roots, int32(binary.LittleEndian.Uint32(p[i:])))
@@ -206,9 +208,6 @@ func decodeFlat(d *decoder, features, K int) (*flatForest, error) {
 	if err := ff.checkRoots(int(nodes)); err != nil {
 		return nil, err
 	}
-	// The mixed leaves' shares come before the nodes, so that each piece of
-	// nodes is checked as soon as it is read, while in the cache: checking
-	// them in a pass of their own after took longer than reading them.
 	err = d.readUnits(8*mixed, 8, func(p []byte) {
 		for i := 0; i < len(p); i += 8 {
 			ff.leafCls = append(ff.leafCls, int32(binary.LittleEndian.Uint32(p[i:])))
@@ -219,20 +218,17 @@ func decodeFlat(d *decoder, features, K int) (*flatForest, error) {
 		return nil, err
 	}
 	ff.nodes = ff.nodes[:nodes]
-	c := checker{ff: ff, features: features, t: -1}
 	at := 0
 	err = d.readUnits(12*nodes, 12, func(p []byte) {
-		from := at
 		for i := 0; i+12 <= len(p); i += 12 {
 			ff.nodes[at] = nodeAt(p[i : i+12])
 			at++
 		}
-		c.check(from, at)
 	})
 	if err != nil {
 		return nil, err
 	}
-	if err := c.finish(); err != nil {
+	if err := ff.check(features); err != nil {
 		return nil, err
 	}
 	return ff, nil
@@ -255,61 +251,114 @@ func (ff *flatForest) checkRoots(nodes int) error {
 	return nil
 }
 
-// checker makes sure a forest read from a file is one compile could have
-// made, a piece of nodes at a time: each tree laid out breadth first (the
-// k-th split's children its nodes 2k+1 and 2k+2, after it: so every node
-// but the root has exactly one parent, before it, and a walk ends at a
-// leaf), features and classes in range, every count positive, and the
-// mixed leaves' shares taken in order, each once. It computes the mixed
-// leaves' shares as it goes.
-type checker struct {
-	ff       *flatForest
-	features int
-	t        int   // the tree being checked
-	lo, hi   int32 // its nodes
-	splits   int32 // its splits so far
-	next     uint32
-	err      error
+// check makes sure a forest read from a file is one compile could have
+// made: in each tree every node but the root the child of exactly one split
+// before it (so the tree is a tree, and a walk ends at a leaf), features and
+// classes in range, every count positive, and the mixed leaves' shares
+// taken in order, each once. The trees are checked on every core (checking
+// each piece of nodes as it was read, on one, took longer), then the mixed
+// leaves' shares computed.
+func (ff *flatForest) check(features int) error {
+	type usage struct{ first, count uint32 } // a tree's mixed leaf shares
+	used := make([]usage, len(ff.roots))
+	errs := make([]error, len(ff.roots))
+	workers := min(runtime.GOMAXPROCS(0), len(ff.roots))
+	var wg sync.WaitGroup
+	for w := range workers {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			var child []uint8
+			for t := w; t < len(ff.roots); t += workers {
+				u := &used[t]
+				if child, u.first, u.count, errs[t] = ff.checkTree(t, features, child); errs[t] != nil {
+					return
+				}
+			}
+		}()
+	}
+	wg.Wait()
+	if err := errors.Join(errs...); err != nil {
+		return err
+	}
+	next := uint32(0)
+	for t, u := range used {
+		if u.count > 0 && u.first != next {
+			return fmt.Errorf("tree %d: mixed leaves out of order", t)
+		}
+		next += u.count
+	}
+	if int(next) != len(ff.leafCls) {
+		return fmt.Errorf("%d leaf shares, the leaves use %d", len(ff.leafCls), next)
+	}
+	ff.leafProb = make([]float64, len(ff.leafCls))
+	for t, u := range used {
+		if u.count == 0 {
+			continue
+		}
+		lo, hi := ff.span(t)
+		for _, n := range ff.nodes[lo:hi] {
+			if n.kc == mixedKC {
+				copy(ff.leafProb[n.lo:], shares(ff.leafCount[n.lo:n.lo+n.hi]))
+			}
+		}
+	}
+	return nil
 }
 
-// check checks nodes from..to-1, which follow those checked before. The
-// common nodes (splits, pure leaves) are checked with the state in locals:
-// through the struct, the loop took three times as long.
-func (c *checker) check(from, to int) {
-	nodes, K, features := c.ff.nodes[:to], uint32(c.ff.K), uint32(c.features)
-	lo, hi, splits := c.lo, c.hi, c.splits
-	for g := int32(from); g < int32(to); g++ {
-		if g >= hi {
-			c.splits = splits
-			for g >= c.hi && c.err == nil {
-				c.endTree()
-			}
-			if c.err != nil {
-				return
-			}
-			lo, hi, splits = c.lo, c.hi, 0
-		}
-		// Splits and leaves come in no order a branch predictor can learn,
-		// so both are checked without a branch (which halved the time),
-		// and only a node that fails both (a mixed leaf, or an error)
-		// goes the slow way.
-		n, i := nodes[g], g-lo
+// checkTree checks tree t, child being scratch space, and gives the range of
+// mixed leaf shares it uses. Splits and pure leaves are checked without a
+// branch: they come in no order a predictor can learn, and with branches
+// the loop took twice as long. Only a node that fails both checks (a mixed
+// leaf, or an error) goes the slow way.
+func (ff *flatForest) checkTree(t, features int, child []uint8) (_ []uint8, first, count uint32, err error) {
+	lo, hi := ff.span(t)
+	size := hi - lo
+	if size > maxTreeNodes {
+		return child, 0, 0, fmt.Errorf("tree %d has %d nodes, more than %d", t, size, maxTreeNodes)
+	}
+	// child[i] is 1 once node i is some split's child; the two entries
+	// past the tree take the writes of leaves, which have no children.
+	child = append(child[:0], make([]uint8, size+2)...)
+	K, nf := uint32(ff.K), uint32(features)
+	splits := int32(0)
+	for i, n := range ff.nodes[lo:hi] {
+		i := int32(i)
 		k, r := n.kc>>restBits, int32(n.kc&restMask)
 		split := b2u(k < leafKind)
-		okSplit := b2u(k < features) & b2u(r == 2*splits+1) & b2u(r > i)
+		inTree := split & b2u(r > i) & b2u(r+1 < size)
+		at := int32(inTree)*r + int32(1-inTree)*size
+		okSplit := inTree & b2u(k < nf) & b2u(child[at]|child[at+1] == 0)
+		child[at], child[at+1] = 1, 1
 		okLeaf := b2u(n.kc == pureKC) & b2u(n.lo < K) & b2u(n.hi-1 < math.MaxInt32)
-		if split&okSplit|(1-split)&okLeaf == 0 {
-			if split == 1 {
-				c.err = fmt.Errorf("tree %d node %d: feature %d or children %d malformed", c.t, i, k, r)
-				return
-			}
-			if c.leaf(n, i); c.err != nil {
-				return
-			}
-		}
 		splits += int32(split)
+		if split&okSplit|(1-split)&okLeaf != 0 {
+			continue
+		}
+		if split == 1 || n.kc != mixedKC {
+			return child, 0, 0, fmt.Errorf("tree %d node %d: malformed (kind %#x, children %d, class %d, count %d)", t, i, n.kc, r, n.lo, n.hi)
+		}
+		if count == 0 {
+			first = n.lo
+		}
+		if n.lo != first+count || n.hi < 2 || uint64(n.lo)+uint64(n.hi) > uint64(len(ff.leafCls)) {
+			return child, 0, 0, fmt.Errorf("tree %d node %d: mixed leaf malformed", t, i)
+		}
+		prev := int32(-1)
+		for j := n.lo; j < n.lo+n.hi; j++ {
+			if ff.leafCls[j] <= prev || uint32(ff.leafCls[j]) >= K || ff.leafCount[j] <= 0 {
+				return child, 0, 0, fmt.Errorf("tree %d node %d: leaf share %d malformed", t, i, j)
+			}
+			prev = ff.leafCls[j]
+		}
+		count += n.hi
 	}
-	c.splits = splits
+	// With no node a child twice, 2·splits+1 nodes make every node but the
+	// root a child once.
+	if 2*splits+1 != size {
+		return child, 0, 0, fmt.Errorf("tree %d: %d splits and %d nodes is no tree", t, splits, size)
+	}
+	return child, first, count, nil
 }
 
 // b2u is 1 for true, 0 for false (compiled without a branch).
@@ -318,62 +367,6 @@ func b2u(b bool) uint32 {
 		return 1
 	}
 	return 0
-}
-
-// leaf checks a leaf other than a well-formed pure one.
-func (c *checker) leaf(n flatNode, i int32) {
-	ff, K := c.ff, uint32(c.ff.K)
-	switch n.kc {
-	case pureKC:
-		c.err = fmt.Errorf("tree %d node %d: leaf class %d or count %d out of range", c.t, i, n.lo, n.hi)
-	case mixedKC:
-		if n.lo != c.next || n.hi < 2 || uint64(n.lo)+uint64(n.hi) > uint64(len(ff.leafCls)) {
-			c.err = fmt.Errorf("tree %d node %d: mixed leaf malformed", c.t, i)
-			return
-		}
-		prev := int32(-1)
-		for j := n.lo; j < n.lo+n.hi; j++ {
-			if ff.leafCls[j] <= prev || uint32(ff.leafCls[j]) >= K || ff.leafCount[j] <= 0 {
-				c.err = fmt.Errorf("tree %d node %d: leaf share %d malformed", c.t, i, j)
-				return
-			}
-			prev = ff.leafCls[j]
-		}
-		ff.leafProb = append(ff.leafProb, shares(ff.leafCount[n.lo:n.lo+n.hi])...)
-		c.next += n.hi
-	default:
-		c.err = fmt.Errorf("tree %d node %d: unknown node kind %#x", c.t, i, n.kc)
-	}
-}
-
-// endTree checks that the tree just read is whole and moves to the next.
-func (c *checker) endTree() {
-	if c.t >= 0 && 2*c.splits+1 != c.hi-c.lo {
-		c.err = fmt.Errorf("tree %d: %d splits and %d nodes is no tree", c.t, c.splits, c.hi-c.lo)
-		return
-	}
-	c.t++
-	c.splits = 0
-	if c.t < len(c.ff.roots) {
-		c.lo, c.hi = c.ff.span(c.t)
-		if c.hi-c.lo > maxTreeNodes {
-			c.err = fmt.Errorf("tree %d has %d nodes, more than %d", c.t, c.hi-c.lo, maxTreeNodes)
-		}
-	}
-}
-
-// finish checks the last tree and that every mixed leaf share was used.
-func (c *checker) finish() error {
-	if c.err != nil {
-		return c.err
-	}
-	if c.endTree(); c.err != nil {
-		return c.err
-	}
-	if int(c.next) != len(c.ff.leafCls) {
-		return fmt.Errorf("%d leaf shares, the leaves use %d", len(c.ff.leafCls), c.next)
-	}
-	return nil
 }
 
 // strings reads n strings as encodeStrings wrote them: one allocation for
