@@ -73,11 +73,14 @@ type Summary struct {
 	// bytes" from one day to the next).
 	Created string `json:"created,omitempty"`
 	// LatestDig is the last date among the training digs, "" without dates.
-	LatestDig   string             `json:"latest_dig,omitempty"`
-	Seed        uint64             `json:"seed"`
-	Trees       int                `json:"trees"`
-	Mtry        int                `json:"mtry"`
-	Digs        int                `json:"digs"`
+	LatestDig string `json:"latest_dig,omitempty"`
+	Seed      uint64 `json:"seed"`
+	Trees     int    `json:"trees"`
+	Mtry      int    `json:"mtry"`
+	Digs      int    `json:"digs"`
+	// MaxSamples is each tree's bootstrap size when it was fewer than the
+	// digs (train --max-samples); 0 when it was all of them.
+	MaxSamples  int                `json:"max_samples,omitempty"`
 	ClassCounts map[string]int     `json:"class_counts"`
 	OutOfBag    Metrics            `json:"out_of_bag"`
 	Importance  map[string]float64 `json:"importance"`

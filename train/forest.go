@@ -17,7 +17,11 @@ type Options struct {
 	Mtry     int    // features per split; default floor(sqrt(features))
 	MinLeaf  int    // default 1
 	MaxDepth int    // 0: unlimited
-	Workers  int    // default GOMAXPROCS
+	// MaxSamples is each tree's bootstrap size: 0 (or more than the rows)
+	// draws as many as there are rows. A smaller one grows smaller trees,
+	// faster, for a very long history (scikit-learn's max_samples).
+	MaxSamples int
+	Workers    int // default GOMAXPROCS
 	// Progress, when set, is called after each tree with the count done;
 	// it may be called from several goroutines.
 	Progress func(done int)
@@ -58,12 +62,20 @@ func treeRNG(seed uint64, t int) *rand.Rand {
 	return rand.New(rand.NewPCG(seed, 0x7eee_0000+uint64(t)))
 }
 
-// bootstrap draws n rows with replacement as multiplicities.
-func bootstrap(rng *rand.Rand, n int, w []int32) {
+// bootstrap draws m of n rows with replacement as multiplicities.
+func bootstrap(rng *rand.Rand, n, m int, w []int32) {
 	clear(w)
-	for range n {
+	for range m {
 		w[rng.IntN(n)]++
 	}
+}
+
+// Samples is the bootstrap size for n rows.
+func (o Options) Samples(n int) int {
+	if o.MaxSamples > 0 && o.MaxSamples < n {
+		return o.MaxSamples
+	}
+	return n
 }
 
 // Grow trains a forest on ds. It also returns the out-of-bag class
@@ -91,7 +103,7 @@ func Grow(ctx context.Context, ds *Dataset, o Options) (*Forest, [][]float64, er
 					return
 				}
 				rng := treeRNG(o.Seed, t)
-				bootstrap(rng, n, w)
+				bootstrap(rng, n, o.Samples(n), w)
 				imps[t] = make([]float64, len(ds.Names))
 				p := treeParams{mtry: o.Mtry, minLeaf: o.MinLeaf, maxDepth: o.MaxDepth, classes: K, importances: imps[t]}
 				grown[t] = growTree(ds, w, p, rng)
@@ -139,7 +151,7 @@ func (f *Forest) outOfBag(ds *Dataset, o Options) [][]float64 {
 	w := make([]int32, n)
 	x := make([]float64, len(ds.Names))
 	for t := range f.NumTrees() {
-		bootstrap(treeRNG(o.Seed, t), n, w)
+		bootstrap(treeRNG(o.Seed, t), n, o.Samples(n), w)
 		for i := range n {
 			if w[i] > 0 {
 				continue

@@ -244,3 +244,36 @@ func TestFromInstancesFixedOrder(t *testing.T) {
 		}
 	}
 }
+
+// TestMaxSamples: each tree's bootstrap holds MaxSamples draws (its leaves'
+// counts sum to it), and a MaxSamples of the rows or more is the default
+// forest, to the bit.
+func TestMaxSamples(t *testing.T) {
+	ds, _ := demo(t)
+	n := ds.Rows()
+	small, _, err := Grow(context.Background(), ds, Options{Trees: 5, Seed: 3, MaxSamples: n / 4})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for tr := range small.NumTrees() {
+		var tot int32
+		for _, c := range small.Tree(tr).LeafCount {
+			tot += c
+		}
+		if int(tot) != n/4 {
+			t.Errorf("tree %d holds %d draws, want %d", tr, tot, n/4)
+		}
+	}
+	all, _, _ := Grow(context.Background(), ds, Options{Trees: 5, Seed: 3})
+	same, _, _ := Grow(context.Background(), ds, Options{Trees: 5, Seed: 3, MaxSamples: n + 10})
+	x := make([]float64, len(ds.Names))
+	for i := range ds.Rows() {
+		x = ds.Row(i, x)
+		if a, b := all.Predict(x, nil), same.Predict(x, nil); !slices.Equal(a, b) {
+			t.Fatalf("row %d: %v against %v", i, a, b)
+		}
+	}
+	if all.Nodes() <= small.Nodes() {
+		t.Errorf("a quarter's bootstrap grew %d nodes, the whole %d", small.Nodes(), all.Nodes())
+	}
+}

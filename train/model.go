@@ -87,6 +87,9 @@ func TrainDataset(ctx context.Context, ds *Dataset, spec *features.FeatureSpec, 
 		Trees: fo.Trees, Mtry: forest.Mtry, Digs: ds.Rows(), ClassCounts: map[string]int{},
 		OutOfBag: Score(ds.Classes, ds.Y, oob), Importance: map[string]float64{}, Skipped: o.Skipped,
 	}
+	if m := fo.Samples(ds.Rows()); m < ds.Rows() {
+		summary.MaxSamples = m
+	}
 	for k, c := range ds.ClassCounts() {
 		summary.ClassCounts[ds.Classes[k]] = c
 	}

@@ -10,6 +10,7 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/spade-detect/spade/train"
 	"gonum.org/v1/gonum/floats/scalar"
 )
 
@@ -196,5 +197,34 @@ func TestFileFlagsCompleteToFiles(t *testing.T) {
 		if !strings.HasPrefix(out, c.want) {
 			t.Errorf("%v: %q, want %q first", c.args, out, c.want)
 		}
+	}
+}
+
+func TestMaxSamplesFlag(t *testing.T) {
+	// A count, or a fraction rounded as scikit-learn rounds max_samples
+	// (max(round(n·f), 1)); anything else is a usage error naming the flag.
+	for s, want := range map[string]int{"": 0, "50000": 50000, "0.2": 200, "1.0": 1000, "1e-9": 1, "0.0005": 1} {
+		if got, err := parseMaxSamples(s, 1000); err != nil || got != want {
+			t.Errorf("%q: %d, %v; want %d", s, got, err, want)
+		}
+	}
+	for _, s := range []string{"0", "-3", "1.5", "0.0", "abc", "20%"} {
+		if _, err := parseMaxSamples(s, 1000); err == nil || !strings.Contains(err.Error(), "--max-samples") {
+			t.Errorf("%q: %v", s, err)
+		}
+	}
+	// Through the command: the model records its bootstrap size.
+	dir := t.TempDir()
+	log := filepath.Join(dir, "h.csv")
+	if _, _, code := spade(t, "", "simulate", "--n", "300", "--seed", "4", "-o", log); code != 0 {
+		t.Fatal("simulate failed")
+	}
+	model := filepath.Join(dir, "m.spade")
+	if _, stderr, code := spade(t, "", "train", log, "-o", model, "--trees", "5", "--no-screen", "--max-samples", "0.5", "-q"); code != 0 {
+		t.Fatal(stderr)
+	}
+	b, err := train.Load(model)
+	if err != nil || b.Summary.MaxSamples != 150 {
+		t.Errorf("max samples %d, %v", b.Summary.MaxSamples, err)
 	}
 }

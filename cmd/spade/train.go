@@ -5,6 +5,9 @@ import (
 	"context"
 	"encoding/json"
 	"fmt"
+	"math"
+	"strconv"
+	"strings"
 
 	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/features"
@@ -19,6 +22,7 @@ type trainOptions struct {
 	output   string
 	trees    int
 	seed     uint64
+	samples  string
 	noScreen bool
 }
 
@@ -28,6 +32,7 @@ func (o *trainOptions) AddFlags(fs *pflag.FlagSet) {
 	fs.StringVarP(&o.output, "output", "o", "", "write the model to `FILE` (required)")
 	fs.IntVar(&o.trees, "trees", 200, "trees in the forest")
 	fs.Uint64Var(&o.seed, "seed", 1, "random seed; the same seed and log give the same model file")
+	fs.StringVar(&o.samples, "max-samples", "", "digs drawn for each tree: a count (`N`, such as 50000) or a fraction of the history (such as 0.2); default all of them. Smaller, faster trees for a very long history")
 	fs.BoolVar(&o.noScreen, "no-screen", false, "leave out the ordnance screen (for comparison only: the model then warns of ordnance only from your own hazardous digs)")
 }
 
@@ -46,7 +51,13 @@ instrument would read them at your frequencies, on your ground, at your noise
 floor) from your own digs, so that the model warns of possible ordnance even
 when your history holds none. With depth_cm in the log the screen also judges
 by apparent size. The file holds no site names or coordinates. The file is written atomically: an interrupted
-training never destroys the previous model.`,
+training never destroys the previous model.
+
+train holds the whole log in memory, with the forest it grows: measured on
+simulated logs, about 650 MB for 100,000 digs. For a very long history (a
+club's pooled logs), --max-samples draws fewer digs for each tree (each
+tree's bootstrap): smaller trees, faster to grow and to use, at some cost in
+accuracy that the out-of-bag figures show.`,
 		Example: "  spade train digs.csv -o my.spade\n  spade train digs.csv -o shapes.spade --label shape --trees 300 --skip-unlabelled",
 		Args:    cobra.ExactArgs(1),
 		RunE:    func(cmd *cobra.Command, args []string) error { return runTrain(cmd.Context(), g, opts, args) },
@@ -75,13 +86,17 @@ func runTrain(ctx context.Context, g *globalOptions, opts trainOptions, args []s
 	if err != nil {
 		return err
 	}
+	samples, err := parseMaxSamples(opts.samples, len(log.Digs))
+	if err != nil {
+		return err
+	}
 	spec := features.NewSpec(log.Freqs, log.HasDisplayID)
 	g.specNotes(spec)
 	bar := g.progress(opts.trees+screenTrees(opts.noScreen, log), "growing trees", opts.format.json())
 	step := func(int) { bar.step(1) }
 	bundle, err := train.TrainBundle(ctx, log, spec, train.TrainOptions{
 		Label: kind, Version: version, Skipped: len(log.Bad) + log.Unlabelled,
-		Forest: train.Options{Trees: opts.trees, Seed: opts.seed, Progress: step},
+		Forest: train.Options{Trees: opts.trees, Seed: opts.seed, MaxSamples: samples, Progress: step},
 		Screen: train.ScreenOptions{Progress: step}, NoScreen: opts.noScreen,
 	})
 	bar.done()
@@ -158,4 +173,26 @@ func hazardStatus(b *train.Bundle) hazardCheckStatus {
 // two ways.
 func trainNotes(b *train.Bundle, log *features.Log) []string {
 	return append(train.HistoryNotes(b.Summary.Digs, b.Summary.ClassCounts), features.LabelNotes(log.Digs)...)
+}
+
+// parseMaxSamples reads --max-samples for a log of n digs: a count, or a
+// fraction (a number with a point) of n, rounded, at least one, as
+// scikit-learn's max_samples; 0 for all of them.
+func parseMaxSamples(s string, n int) (int, error) {
+	if s == "" {
+		return 0, nil
+	}
+	bad := usagef("--max-samples takes a count of digs (such as 50000) or a fraction of the history above 0 and at most 1 (such as 0.2); got %q", s)
+	if strings.ContainsAny(s, ".eE") {
+		f, err := strconv.ParseFloat(s, 64)
+		if err != nil || !(f > 0 && f <= 1) {
+			return 0, bad
+		}
+		return max(1, int(math.Round(f*float64(n)))), nil
+	}
+	m, err := strconv.Atoi(s)
+	if err != nil || m < 1 {
+		return 0, bad
+	}
+	return m, nil
 }
