@@ -71,16 +71,16 @@ func BenchmarkLoad(b *testing.B) {
 }
 
 // BenchmarkLoadFormats: loading a 5,000-dig model written as format 2
-// (training vectors in the JSON) and as format 3 (in a binary section), in
-// one run.
+// (training vectors in the JSON), format 3 (in a binary section) and format
+// 4 (the compiled forest as it is, streamed), in one run.
 func BenchmarkLoadFormats(b *testing.B) {
 	ds := simulated(b, 5000)
 	bundle, err := TrainDataset(context.Background(), ds, features.NewSpec(datasets.DefaultFreqs, true), TrainOptions{Forest: Options{Trees: 50, Seed: 1}})
 	if err != nil {
 		b.Fatal(err)
 	}
-	three, _ := bundle.Marshal()
-	for name, data := range map[string][]byte{"format=2": encodeV2(bundle), "format=3": three} {
+	four, _ := bundle.Marshal()
+	for name, data := range map[string][]byte{"format=2": encodeV2(bundle), "format=3": encodeV3(bundle), "format=4": four} {
 		b.Run(name, func(b *testing.B) {
 			b.SetBytes(int64(len(data)))
 			for range b.N {
