@@ -3,6 +3,7 @@ package features
 import (
 	"errors"
 	"fmt"
+	"io/fs"
 )
 
 // Sentinel causes of a ParseError; test them with errors.Is.
@@ -49,4 +50,15 @@ func (e *ParseError) Unwrap() error { return e.Err }
 // cause wraps a sentinel with the offending detail: "must be > 0, got -0.3".
 func cause(sentinel error, format string, args ...any) error {
 	return fmt.Errorf("%w, "+format, append([]any{sentinel}, args...)...)
+}
+
+// PathCause drops the operation and path an *fs.PathError repeats, so that
+// a message names its file once: "cannot read model m.spade: no such file
+// or directory", and never the temporary file's name.
+func PathCause(err error) error {
+	var pe *fs.PathError
+	if errors.As(err, &pe) {
+		return pe.Err
+	}
+	return err
 }

@@ -8,7 +8,6 @@ import (
 	"hash/fnv"
 	"io"
 	"math"
-	"os"
 	"strings"
 
 	"golang.org/x/text/encoding/unicode"
@@ -305,26 +304,6 @@ func ReadLog(r io.Reader, name string, opts ReadOptions) (*Log, error) {
 		return nil, &ParseError{File: name, Err: fmt.Errorf("%w: %d bad and %d unlabelled rows, none left", ErrNoDigs, len(rd.Bad), rd.Unlabelled)}
 	}
 	return log, nil
-}
-
-// Open opens a dig log by its file name, with an error a person can act
-// on. The caller closes it. (Standard input is the command's to give.)
-func Open(name string) (io.ReadCloser, error) {
-	f, err := os.Open(name)
-	if err != nil {
-		return nil, fmt.Errorf("cannot read %s: %w", name, PathCause(err))
-	}
-	return f, nil
-}
-
-// ReadFile reads a dig log from a file name.
-func ReadFile(name string, opts ReadOptions) (*Log, error) {
-	f, err := Open(name)
-	if err != nil {
-		return nil, err
-	}
-	defer f.Close()
-	return ReadLog(f, name, opts)
 }
 
 // readingFrom turns one frequency's two values into a Reading, checking them.

@@ -17,7 +17,7 @@ func TestReadSpreadsheetExport(t *testing.T) {
 	// mixed-case column names and an ignored column (dig-log contract).
 	for _, name := range []string{"spreadsheet.csv", "spreadsheet.jsonl"} {
 		t.Run(name, func(t *testing.T) {
-			log, err := ReadFile(logs+name, ReadOptions{})
+			log, err := readFile(logs+name, ReadOptions{})
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -51,7 +51,7 @@ func TestReadSpreadsheetExport(t *testing.T) {
 }
 
 func TestReadComponentsAndGround(t *testing.T) {
-	log, err := ReadFile(logs+"components.csv", ReadOptions{})
+	log, err := readFile(logs+"components.csv", ReadOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -196,7 +196,7 @@ func TestPolarComponentsRoundTrip(t *testing.T) {
 }
 
 func TestWriteReadRoundTrip(t *testing.T) {
-	log, err := ReadFile(logs+"spreadsheet.csv", ReadOptions{})
+	log, err := readFile(logs+"spreadsheet.csv", ReadOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -249,4 +249,14 @@ func sameDigs(a, b []Dig) string {
 		}
 	}
 	return ""
+}
+
+// readFile reads a dig log from a file name, as a command does.
+func readFile(name string, opts ReadOptions) (*Log, error) {
+	f, err := os.Open(name)
+	if err != nil {
+		return nil, err
+	}
+	defer f.Close()
+	return ReadLog(f, name, opts)
 }

@@ -9,6 +9,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"github.com/spade-detect/spade/internal/atomicfile"
 	"hash/crc32"
 	"io"
 	"math"
@@ -223,7 +224,7 @@ func (b *Bundle) Save(path string) error { return b.SaveContext(context.Backgrou
 
 // SaveContext is Save that stops, writing nothing, when ctx is done.
 func (b *Bundle) SaveContext(ctx context.Context, path string) error {
-	return features.WriteFileAtomicContext(ctx, path, func(w io.Writer) error {
+	return atomicfile.WriteContext(ctx, path, func(w io.Writer) error {
 		bw := bufio.NewWriterSize(w, 1<<20)
 		if err := b.Encode(bw); err != nil {
 			return err

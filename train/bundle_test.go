@@ -5,6 +5,7 @@ import (
 	"context"
 	"encoding/binary"
 	"errors"
+	"github.com/spade-detect/spade/internal/atomicfile"
 	"hash/crc32"
 	"io"
 	"math"
@@ -91,7 +92,7 @@ func TestInterruptedSaveKeepsPreviousModel(t *testing.T) {
 	before, _ := os.ReadFile(path)
 	// A write that dies half way (as a full disc or Ctrl-C would).
 	boom := errors.New("disc full")
-	err := features.WriteFileAtomic(path, func(w io.Writer) error {
+	err := atomicfile.Write(path, func(w io.Writer) error {
 		w.Write(before[:len(before)/2])
 		return boom
 	})

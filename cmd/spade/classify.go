@@ -13,6 +13,8 @@ import (
 	"strconv"
 	"strings"
 
+	"github.com/spade-detect/spade/internal/textui"
+
 	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/features"
 	"github.com/spade-detect/spade/train"
@@ -124,13 +126,13 @@ func runClassify(ctx context.Context, g *globalOptions, opts classifyOptions, ar
 	defer closer()
 	// A count on stderr while results go to a file or a pipe; never over a
 	// table being written to the same screen.
-	toScreen := (opts.output == "-" || opts.output == "") && stderrIsTerminal(g.stdout)
+	toScreen := (opts.output == "-" || opts.output == "") && textui.IsTerminal(g.stdout)
 	bar := g.progress(-1, "classifying", opts.format.json() || toScreen || opts.reading != "")
-	defer bar.done()
+	defer bar.Done()
 	return g.writeOutput(opts.output, func(w io.Writer) error {
 		out := newResultWriter(w, opts.format.value, bundle.Classes, opts.top, c.Warnings())
 		err := classify.Stream(ctx, c, next, name, func(r *classify.Result) error {
-			bar.step(1)
+			bar.Step(1)
 			return out.write(r)
 		})
 		var pe *features.ParseError
@@ -260,7 +262,7 @@ func (o *resultWriter) write(r *classify.Result) error {
 	default:
 		if o.n == 0 {
 			for _, w := range o.warnings {
-				fmt.Fprint(o.w, wrap("!! "+w, 78, ""))
+				fmt.Fprint(o.w, textui.Wrap("!! "+w, 78, ""))
 			}
 		}
 		writeResultTable(o.w, r, o.top)
@@ -279,7 +281,7 @@ func (o *resultWriter) stopped(err error) {
 		}
 		fmt.Fprintf(o.w, "# stopped: %s\n", oneLine(err))
 	case "table":
-		fmt.Fprint(o.w, wrap("stopped: "+oneLine(err), 78, ""))
+		fmt.Fprint(o.w, textui.Wrap("stopped: "+oneLine(err), 78, ""))
 	}
 }
 
@@ -308,13 +310,13 @@ func (o *resultWriter) close() error {
 func writeResultTable(w io.Writer, r *classify.Result, top int) {
 	fmt.Fprintf(w, "%s\n", strings.Repeat("─", 78))
 	if c := r.Caution; c != nil {
-		fmt.Fprint(w, wrapHanging(r.Dig+"  ", "!! "+c.Message, 78, "     "))
-		fmt.Fprint(w, wrap(hazardLine(r)+"; a probability is never a guarantee", 78, "     "))
+		fmt.Fprint(w, textui.WrapHanging(r.Dig+"  ", "!! "+c.Message, 78, "     "))
+		fmt.Fprint(w, textui.Wrap(hazardLine(r)+"; a probability is never a guarantee", 78, "     "))
 	} else {
 		fmt.Fprintf(w, "%s  %s\n", r.Dig, verdictLine(r))
 	}
 	if r.Novelty.Unfamiliar {
-		fmt.Fprint(w, wrap("?? "+r.Decision.Note, 78, "     "))
+		fmt.Fprint(w, textui.Wrap("?? "+r.Decision.Note, 78, "     "))
 	}
 	for i, cp := range r.Ranked {
 		// The top classes, and always every class behind a caution.
@@ -322,22 +324,22 @@ func writeResultTable(w io.Writer, r *classify.Result, top int) {
 		if !hazard && (i >= top || cp.Probability < 0.005) {
 			continue
 		}
-		fmt.Fprintf(w, "     %-28s %s %6s\n", trunc(cp.Class, 28), bar(cp.Probability, 30), probText(cp.Probability, 1))
+		fmt.Fprintf(w, "     %-28s %s %6s\n", textui.Trunc(cp.Class, 28), textui.Bar(cp.Probability, 30), textui.Prob(cp.Probability, 1))
 	}
-	fmt.Fprint(w, wrap("material: "+shareList(r.Materials, 4), 78, "     "))
-	fmt.Fprint(w, wrap("shape: "+shareList(r.Shapes, 4), 78, "     "))
+	fmt.Fprint(w, textui.Wrap("material: "+shareList(r.Materials, 4), 78, "     "))
+	fmt.Fprint(w, textui.Wrap("shape: "+shareList(r.Shapes, 4), 78, "     "))
 	if r.Caution == nil {
-		fmt.Fprint(w, wrap(hazardLine(r), 78, "     "))
+		fmt.Fprint(w, textui.Wrap(hazardLine(r), 78, "     "))
 	}
-	fmt.Fprintf(w, "     novelty: %s percentile of your digs\n", ordinal(int(r.Novelty.Percentile)))
+	fmt.Fprintf(w, "     novelty: %s percentile of your digs\n", textui.Ordinal(int(r.Novelty.Percentile)))
 	if r.Learn.Worth {
-		fmt.Fprint(w, wrap(fmt.Sprintf("worth digging to learn: the model is unsure (top class %s), so what comes out would teach it most", probText(r.Top.Probability, 0)), 78, "     "))
+		fmt.Fprint(w, textui.Wrap(fmt.Sprintf("worth digging to learn: the model is unsure (top class %s), so what comes out would teach it most", textui.Prob(r.Top.Probability, 0)), 78, "     "))
 	}
 	var nb []string
 	for _, n := range r.Neighbours {
 		nb = append(nb, fmt.Sprintf("%s %s (%s, %.2f)", n.Dig, n.Class, n.Date, n.Distance))
 	}
-	fmt.Fprint(w, wrap("nearest past digs: "+strings.Join(nb, "; "), 78, "     "))
+	fmt.Fprint(w, textui.Wrap("nearest past digs: "+strings.Join(nb, "; "), 78, "     "))
 }
 
 // hazardLine says what the hazard check found, in one line.
@@ -348,10 +350,10 @@ func hazardLine(r *classify.Result) string {
 	}
 	parts := []string{}
 	if h.ScreenUsed != "" {
-		parts = append(parts, fmt.Sprintf("ordnance screen %s (by %s)", probText(h.Screen, 0), h.ScreenUsed))
+		parts = append(parts, fmt.Sprintf("ordnance screen %s (by %s)", textui.Prob(h.Screen, 0), h.ScreenUsed))
 	}
 	if h.History >= 0.01 || r.Caution != nil && len(r.Caution.Classes) > 0 {
-		parts = append(parts, "your hazardous classes "+probText(h.History, 1))
+		parts = append(parts, "your hazardous classes "+textui.Prob(h.History, 1))
 	}
 	return fmt.Sprintf("hazard check: %s; %s", h.Tier, strings.Join(parts, ", "))
 }
@@ -360,28 +362,14 @@ func verdictLine(r *classify.Result) string {
 	d := r.Decision
 	switch d.Verdict {
 	case "unsure":
-		return fmt.Sprintf("UNSURE: looks most like %s (%s), but see below", r.Top.Class, probText(r.Top.Probability, 0))
+		return fmt.Sprintf("UNSURE: looks most like %s (%s), but see below", r.Top.Class, textui.Prob(r.Top.Probability, 0))
 	case classify.VerdictNone:
-		return fmt.Sprintf("no verdict: looks most like %s (%s); give --values for one", r.Top.Class, probText(r.Top.Probability, 0))
+		return fmt.Sprintf("no verdict: looks most like %s (%s); give --values for one", r.Top.Class, textui.Prob(r.Top.Probability, 0))
 	case "dig":
-		return fmt.Sprintf("DIG: %s %s, expected value %+.1f by your values", r.Top.Class, probText(r.Top.Probability, 0), d.ExpectedValue)
+		return fmt.Sprintf("DIG: %s %s, expected value %+.1f by your values", r.Top.Class, textui.Prob(r.Top.Probability, 0), d.ExpectedValue)
 	default:
-		return fmt.Sprintf("skip: %s %s, expected value %+.1f by your values", r.Top.Class, probText(r.Top.Probability, 0), d.ExpectedValue)
+		return fmt.Sprintf("skip: %s %s, expected value %+.1f by your values", r.Top.Class, textui.Prob(r.Top.Probability, 0), d.ExpectedValue)
 	}
-}
-
-// probText writes a probability as a percentage with the given decimals,
-// but never as 0% or 100%: spade's probabilities are never exactly 0 or 1,
-// and a probability is never a guarantee. Below 1% it says "<1%", above
-// 99% ">99%".
-func probText(p float64, decimals int) string {
-	switch {
-	case p < 0.01:
-		return "<1%"
-	case p > 0.99:
-		return ">99%"
-	}
-	return strconv.FormatFloat(100*p, 'f', decimals, 64) + "%"
 }
 
 func shareList(ps []classify.ClassP, n int) string {
@@ -390,22 +378,7 @@ func shareList(ps []classify.ClassP, n int) string {
 		if p.Probability < 0.01 {
 			break
 		}
-		s = append(s, p.Class+" "+probText(p.Probability, 0))
+		s = append(s, p.Class+" "+textui.Prob(p.Probability, 0))
 	}
 	return strings.Join(s, ", ")
-}
-
-// ordinal writes 1st, 2nd, 3rd, 4th, 11th, 21st...
-func ordinal(n int) string {
-	suffix := "th"
-	switch {
-	case n%100 >= 11 && n%100 <= 13:
-	case n%10 == 1:
-		suffix = "st"
-	case n%10 == 2:
-		suffix = "nd"
-	case n%10 == 3:
-		suffix = "rd"
-	}
-	return fmt.Sprintf("%d%s", n, suffix)
 }

@@ -10,6 +10,8 @@ import (
 	"path/filepath"
 	"strings"
 
+	"github.com/spade-detect/spade/internal/textui"
+
 	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/classify/overlap"
 	"github.com/spade-detect/spade/classify/plots"
@@ -70,7 +72,7 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 	}
 	spec := features.NewSpec(log.Freqs, log.HasDisplayID)
 	fmt.Fprintf(w, "spade demo: the main job on an invented dig history\n\n")
-	fmt.Fprint(w, wrap(fmt.Sprintf("History: %d digs from two invented sites, Harrowmere Farm (an iron-rich field) and Sandle Reach (a tidal beach), read at %s, each with what came out of the ground. Values: datasets/demo/values.toml.",
+	fmt.Fprint(w, textui.Wrap(fmt.Sprintf("History: %d digs from two invented sites, Harrowmere Farm (an iron-rich field) and Sandle Reach (a tidal beach), read at %s, each with what came out of the ground. Values: datasets/demo/values.toml.",
 		len(log.Digs), features.HzList(log.Freqs)), 78, ""))
 
 	// 1. How good is it, honestly?
@@ -101,7 +103,7 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 	// 3. A model, and new readings.
 	fmt.Fprintf(w, "\n== 3. New readings, classified by a model of the whole history\n\n")
 	bar := g.progress(opts.trees+screenTrees(false, log), "growing trees", false)
-	step := func(int) { bar.step(1) }
+	step := func(int) { bar.Step(1) }
 	bundle, err := train.TrainDataset(ctx, ds, spec, train.TrainOptions{Label: features.LabelBoth, Version: version,
 		Forest: train.Options{Trees: opts.trees, Seed: opts.seed, Progress: step}})
 	if err == nil {
@@ -110,11 +112,11 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 	if err == nil {
 		classify.Prepare(bundle)
 	}
-	bar.done()
+	bar.Done()
 	if err != nil {
 		return err
 	}
-	fmt.Fprint(w, wrap(hazardStatus(bundle).Text+" The readings below have no depth, so the screen judges them by phase and amplitude and says at most \"cannot be ruled out\"; the history's own ordnance digs give the \"likely\" tier.", 78, ""))
+	fmt.Fprint(w, textui.Wrap(hazardStatus(bundle).Text+" The readings below have no depth, so the screen judges them by phase and amplitude and says at most \"cannot be ruled out\"; the history's own ordnance digs give the \"likely\" tier.", 78, ""))
 	fmt.Fprintln(w)
 	modelPath := filepath.Join(opts.dir, "demo.spade")
 	if err := bundle.SaveContext(ctx, modelPath); err != nil {
@@ -133,7 +135,7 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 		}
 		writeResultTable(w, r, 4)
 		if n := notes[r.Dig]; n != "" {
-			fmt.Fprint(w, wrap("(what it really was: "+strings.TrimPrefix(n, "simulated: ")+")", 78, "     "))
+			fmt.Fprint(w, textui.Wrap("(what it really was: "+strings.TrimPrefix(n, "simulated: ")+")", 78, "     "))
 		}
 	}
 

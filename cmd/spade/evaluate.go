@@ -141,9 +141,9 @@ func evaluateScreen(ctx context.Context, g *globalOptions, log *features.Log, sp
 	ev, err := train.EvaluateScreen(ctx, log, spec, train.ScreenOptions{Seed: seed, Progress: func(int) {
 		mu.Lock()
 		defer mu.Unlock()
-		bar.step(1)
+		bar.Step(1)
 	}}, keeper)
-	bar.done()
+	bar.Done()
 	if errors.Is(err, train.ErrNoScreen) {
 		return nil, nil
 	}
@@ -216,11 +216,11 @@ func evaluateDataset(ctx context.Context, g *globalOptions, ds *train.Dataset, f
 		mu.Lock()
 		defer mu.Unlock()
 		if done > last {
-			bar.step(done - last)
+			bar.Step(done - last)
 			last = done
 		}
 	}
 	ev, err := train.CrossValidate(ctx, ds, eo)
-	bar.done()
+	bar.Done()
 	return ev, err
 }

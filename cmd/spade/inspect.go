@@ -7,6 +7,8 @@ import (
 	"sort"
 	"strings"
 
+	"github.com/spade-detect/spade/internal/textui"
+
 	"github.com/spade-detect/spade/train"
 	"github.com/spf13/cobra"
 	"github.com/spf13/pflag"
@@ -48,7 +50,7 @@ func runInspect(_ context.Context, g *globalOptions, opts inspectOptions, args [
 		return enc.Encode(map[string]any{"format": b.Format, "spec": b.Spec, "label": b.Label, "classes": b.Classes, "summary": s, "hazard_check": hazardStatus(b)})
 	}
 	fmt.Fprintf(w, "model %s (format %d)\n", args[0], b.Format)
-	fmt.Fprint(w, wrap(hazardStatus(b).Text, 78, "  "))
+	fmt.Fprint(w, textui.Wrap(hazardStatus(b).Text, 78, "  "))
 	switch {
 	case s.Created != "":
 		fmt.Fprintf(w, "  made by spade %s on %s, seed %d\n", s.SpadeVersion, s.Created, s.Seed)
@@ -64,13 +66,13 @@ func runInspect(_ context.Context, g *globalOptions, opts inspectOptions, args [
 		s.OutOfBag.Accuracy, s.OutOfBag.BalancedAccuracy, s.OutOfBag.LogLoss, s.OutOfBag.ECE)
 	fmt.Fprintf(w, "\n  %-32s %6s %8s\n", "class", "digs", "recall")
 	for _, c := range b.Classes {
-		fmt.Fprintf(w, "  %-32s %6d %8.2f\n", trunc(c, 32), s.ClassCounts[c], s.OutOfBag.PerClass[c].Recall)
+		fmt.Fprintf(w, "  %-32s %6d %8.2f\n", textui.Trunc(c, 32), s.ClassCounts[c], s.OutOfBag.PerClass[c].Recall)
 	}
 	names := append([]string(nil), b.Spec.Names...)
 	sort.SliceStable(names, func(i, j int) bool { return s.Importance[names[i]] > s.Importance[names[j]] })
 	fmt.Fprintf(w, "\n  %-20s %s\n", "feature", "share of the forest's impurity decrease")
 	for _, n := range names {
-		fmt.Fprintf(w, "  %-20s %s %4.1f%%\n", n, bar(s.Importance[n], 30), 100*s.Importance[n])
+		fmt.Fprintf(w, "  %-20s %s %4.1f%%\n", n, textui.Bar(s.Importance[n], 30), 100*s.Importance[n])
 	}
 	if sc := b.Screen; sc != nil {
 		fmt.Fprintf(w, "\n  ordnance screen (%s): %d simulated munitions, %d of your digs\n  (%d hazardous); out of bag:\n", sc.Library, sc.LibraryDigs, sc.HistoryDigs, sc.OwnHazardDigs)
@@ -83,7 +85,7 @@ func runInspect(_ context.Context, g *globalOptions, opts inspectOptions, args [
 				continue
 			}
 			o := p.f.OutOfBag
-			fmt.Fprintf(w, "  %-22s %14.2f %16s %16s\n", p.name, p.f.Low, pct(o.LibraryCaught), pct(o.DigsFlagged))
+			fmt.Fprintf(w, "  %-22s %14.2f %16s %16s\n", p.name, p.f.Low, textui.Pct(o.LibraryCaught), textui.Pct(o.DigsFlagged))
 		}
 	}
 	return nil

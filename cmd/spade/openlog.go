@@ -1,7 +1,9 @@
 package main
 
 import (
+	"fmt"
 	"io"
+	"os"
 
 	"github.com/spade-detect/spade/features"
 )
@@ -11,5 +13,9 @@ func openLog(g *globalOptions, name string) (io.ReadCloser, error) {
 	if name == "-" {
 		return io.NopCloser(g.stdin), nil
 	}
-	return features.Open(name)
+	f, err := os.Open(name)
+	if err != nil {
+		return nil, fmt.Errorf("cannot read %s: %w", name, features.PathCause(err))
+	}
+	return f, nil
 }

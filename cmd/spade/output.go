@@ -9,7 +9,7 @@ import (
 	"os"
 	"path/filepath"
 
-	"github.com/spade-detect/spade/features"
+	"github.com/spade-detect/spade/internal/atomicfile"
 )
 
 // writeOutput sends output to standard output for "-" and otherwise to a
@@ -40,7 +40,7 @@ func (g *globalOptions) writeOutput(name string, write func(io.Writer) error) er
 	if ctx == nil {
 		ctx = context.Background()
 	}
-	if err := features.WriteFileAtomicContext(ctx, name, buffered); err != nil {
+	if err := atomicfile.WriteContext(ctx, name, buffered); err != nil {
 		return err
 	}
 	return kept

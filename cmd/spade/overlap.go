@@ -11,6 +11,9 @@ import (
 	"strconv"
 	"strings"
 
+	"github.com/spade-detect/spade/internal/atomicfile"
+	"github.com/spade-detect/spade/internal/textui"
+
 	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/classify/overlap"
 	"github.com/spade-detect/spade/classify/plots"
@@ -197,7 +200,7 @@ func writeOverlapTable(w io.Writer, r *overlap.Result, noValues bool) {
 	fmt.Fprintf(w, "Ambiguous %s ranges in your %d digs (bins of %g; ambiguous when the top\n", r.By, r.Digs, r.Width)
 	fmt.Fprintf(w, "class has under %.0f%% or the entropy is over %g bit)\n", 100*r.MinTopShare, r.MaxEntropy)
 	for _, n := range r.Notes {
-		fmt.Fprint(w, wrap("note: "+n, 78, ""))
+		fmt.Fprint(w, textui.Wrap("note: "+n, 78, ""))
 	}
 	if len(r.Ranges) == 0 {
 		fmt.Fprintln(w, "\nNo ambiguous ranges: every bin has a clear top class.")
@@ -215,12 +218,12 @@ func writeOverlapTable(w io.Writer, r *overlap.Result, noValues bool) {
 		if len(rg.Classes) > 5 {
 			cl = append(cl, fmt.Sprintf("%d more", len(rg.Classes)-5))
 		}
-		fmt.Fprint(w, wrap(strings.Join(cl, ", "), 78, "  "))
+		fmt.Fprint(w, textui.Wrap(strings.Join(cl, ", "), 78, "  "))
 		for _, h := range rg.Hazards {
-			fmt.Fprint(w, wrap("!! "+h.Words+" (possible ordnance)", 78, "  "))
+			fmt.Fprint(w, textui.Wrap("!! "+h.Words+" (possible ordnance)", 78, "  "))
 		}
 		for _, k := range rg.Keepers {
-			fmt.Fprint(w, wrap(k.Words, 78, "  "))
+			fmt.Fprint(w, textui.Wrap(k.Words, 78, "  "))
 		}
 		if res := rg.Resolution; res != nil {
 			line := fmt.Sprintf("spade is right on %.0f%% of these digs where the majority rule is right on %.0f%%; entropy %.1f -> %.1f bits",
@@ -228,7 +231,7 @@ func writeOverlapTable(w io.Writer, r *overlap.Result, noValues bool) {
 			if res.TrashSkipped != nil {
 				line += fmt.Sprintf("; %.0f%% of the trash here could be skipped keeping 99%% of keepers", 100**res.TrashSkipped)
 			}
-			fmt.Fprint(w, wrap(line, 78, "  "))
+			fmt.Fprint(w, textui.Wrap(line, 78, "  "))
 		}
 	}
 	if noValues {
@@ -273,5 +276,5 @@ func writePlot(path string, draw func(io.Writer, string) error) error {
 	if err != nil {
 		return err
 	}
-	return features.WriteFileAtomic(path, func(w io.Writer) error { return draw(w, format) })
+	return atomicfile.Write(path, func(w io.Writer) error { return draw(w, format) })
 }

@@ -3,31 +3,13 @@ package main
 import (
 	"fmt"
 	"io"
-	"math"
 	"sort"
 	"strings"
 
+	"github.com/spade-detect/spade/internal/textui"
+
 	"github.com/spade-detect/spade/train"
 )
-
-// pct writes a share as a whole percentage.
-func pct(v float64) string { return fmt.Sprintf("%3.0f%%", 100*v) }
-
-// bar draws a share as a bar of width cells.
-func bar(v float64, width int) string {
-	n := int(math.Round(v * float64(width)))
-	n = min(max(n, 0), width)
-	return strings.Repeat("█", n) + strings.Repeat("·", width-n)
-}
-
-// trunc shortens s to n runes.
-func trunc(s string, n int) string {
-	r := []rune(s)
-	if len(r) <= n {
-		return s
-	}
-	return string(r[:n-1]) + "…"
-}
 
 // writeEvaluation prints the cross-validated report in 80 columns.
 func writeEvaluation(w io.Writer, ev *train.Evaluation, label string) {
@@ -35,11 +17,11 @@ func writeEvaluation(w io.Writer, ev *train.Evaluation, label string) {
 	if ev.GroupedBy != "" {
 		how = "whole groups by " + ev.GroupedBy + " held out together"
 	}
-	fmt.Fprint(w, wrap(fmt.Sprintf("Cross-validated on %d digs: %d folds (%s), seed %d, %d classes (%s).",
+	fmt.Fprint(w, textui.Wrap(fmt.Sprintf("Cross-validated on %d digs: %d folds (%s), seed %d, %d classes (%s).",
 		ev.Digs, ev.Folds, how, ev.Seed, len(ev.Classes), label), 80, ""))
 	fmt.Fprintln(w)
 	for _, n := range ev.Warnings {
-		fmt.Fprint(w, wrap("note: "+n+".", 78, ""))
+		fmt.Fprint(w, textui.Wrap("note: "+n+".", 78, ""))
 	}
 	if len(ev.Warnings) > 0 {
 		fmt.Fprintln(w)
@@ -60,23 +42,23 @@ func writeEvaluation(w io.Writer, ev *train.Evaluation, label string) {
 	row("Brier score", m.Brier, b.Brier, "")
 	row("calibration error (ECE)", m.ECE, b.ECE, "")
 	if v := ev.Verdict(); v != "" {
-		fmt.Fprint(w, wrap(v, 78, ""))
+		fmt.Fprint(w, textui.Wrap(v, 78, ""))
 	}
 	if len(ev.Learning) > 0 {
 		fmt.Fprintf(w, "\nLearning curve: the same folds, learning from part of each fold's digs\n")
 		fmt.Fprintf(w, "  %-10s %8s %10s %10s\n", "share", "digs", "accuracy", "log-loss")
 		for _, p := range ev.Learning {
-			fmt.Fprintf(w, "  %-10s %8d %10.3f %10.3f\n", pct(p.Share), p.Digs, p.Accuracy, p.LogLoss)
+			fmt.Fprintf(w, "  %-10s %8d %10.3f %10.3f\n", textui.Pct(p.Share), p.Digs, p.Accuracy, p.LogLoss)
 		}
-		fmt.Fprint(w, wrap(ev.LearningVerdict, 78, "  "))
+		fmt.Fprint(w, textui.Wrap(ev.LearningVerdict, 78, "  "))
 	}
 	if d := ev.DigSaving; d != nil {
 		fmt.Fprintf(w, "\nDig saving: trash digs you could have skipped, keeping your keepers\n")
 		fmt.Fprintf(w, "(%d keeper and %d trash digs)\n", d.KeeperDigs, d.TrashDigs)
-		fmt.Fprint(w, wrap("keepers: "+strings.Join(d.Keepers, ", "), 78, "  "))
+		fmt.Fprint(w, textui.Wrap("keepers: "+strings.Join(d.Keepers, ", "), 78, "  "))
 		fmt.Fprintf(w, "  %-18s %27s %27s\n", "keeping", "spade", "one number")
 		cell := func(p train.SavingPoint) string {
-			return fmt.Sprintf("%s skip, lost %d of %d", pct(p.TrashSkipped), p.KeepersLost, p.Keepers)
+			return fmt.Sprintf("%s skip, lost %d of %d", textui.Pct(p.TrashSkipped), p.KeepersLost, p.Keepers)
 		}
 		for i, p := range d.Model {
 			fmt.Fprintf(w, "  %-18s %27s %27s\n", fmt.Sprintf("%.0f%% of keepers", 100*p.Keep), cell(p), cell(d.Baseline[i]))
@@ -115,14 +97,14 @@ func writeBaselineEvaluation(w io.Writer, ev *train.Evaluation) {
 	if d := ev.DigSaving; d != nil {
 		fmt.Fprintf(w, "\nDig saving by the one number: trash digs you could have skipped\n")
 		fmt.Fprintf(w, "(%d keeper and %d trash digs)\n", d.KeeperDigs, d.TrashDigs)
-		fmt.Fprint(w, wrap("keepers: "+strings.Join(d.Keepers, ", "), 78, "  "))
+		fmt.Fprint(w, textui.Wrap("keepers: "+strings.Join(d.Keepers, ", "), 78, "  "))
 		for _, p := range d.Baseline {
-			fmt.Fprintf(w, "  keeping %3.0f%% of keepers: %s skip, lost %d of %d\n", 100*p.Keep, pct(p.TrashSkipped), p.KeepersLost, p.Keepers)
+			fmt.Fprintf(w, "  keeping %3.0f%% of keepers: %s skip, lost %d of %d\n", 100*p.Keep, textui.Pct(p.TrashSkipped), p.KeepersLost, p.Keepers)
 		}
 	}
 	writePerClass(w, "one number", ev.Classes, b)
 	fmt.Fprintf(w, "\nOrdnance screen\n")
-	fmt.Fprint(w, wrap("HAZARD CHECK UNAVAILABLE: a log of display IDs only carries no ordnance screen, and the one number cannot warn of munitions your history lacks.", 78, "  "))
+	fmt.Fprint(w, textui.Wrap("HAZARD CHECK UNAVAILABLE: a log of display IDs only carries no ordnance screen, and the one number cannot warn of munitions your history lacks.", 78, "  "))
 }
 
 // writePerClass is the per-class table and the commonest mistakes of one
@@ -132,7 +114,7 @@ func writePerClass(w io.Writer, who string, classes []string, m train.Metrics) {
 	fmt.Fprintf(w, "\n%s%*s %9s %7s %6s\n", title, 36-len(title), "digs", "precision", "recall", "F1")
 	for _, c := range classes {
 		pc := m.PerClass[c]
-		fmt.Fprintf(w, "  %-32s %5d %9.2f %7.2f %6.2f\n", trunc(c, 32), pc.Support, pc.Precision, pc.Recall, pc.F1)
+		fmt.Fprintf(w, "  %-32s %5d %9.2f %7.2f %6.2f\n", textui.Trunc(c, 32), pc.Support, pc.Precision, pc.Recall, pc.F1)
 	}
 	writeConfusions(w, who, classes, m.Confusion)
 }
@@ -143,7 +125,7 @@ func writePerClass(w io.Writer, who string, classes []string, m train.Metrics) {
 func writeScreenEvaluation(w io.Writer, s *train.ScreenEvaluation) {
 	fmt.Fprintf(w, "\nOrdnance screen: would it warn of munitions your history lacks?\n")
 	if s == nil {
-		fmt.Fprint(w, wrap("HAZARD CHECK UNAVAILABLE: this log cannot carry an ordnance screen (no usable amplitudes), so a model of it warns only from your own hazardous digs.", 78, "  "))
+		fmt.Fprint(w, textui.Wrap("HAZARD CHECK UNAVAILABLE: this log cannot carry an ordnance screen (no usable amplitudes), so a model of it warns only from your own hazardous digs.", 78, "  "))
 		return
 	}
 	col := "no depth"
@@ -154,15 +136,15 @@ func writeScreenEvaluation(w io.Writer, s *train.ScreenEvaluation) {
 	if s.Depth {
 		withDepth = fmt.Sprintf(", %.0f%% with their depth", 100*s.CaughtDepth)
 	}
-	fmt.Fprint(w, wrap(fmt.Sprintf("Simulated munitions (%s) read as your instrument would, each group scored by a screen fitted without it: %.0f%% warned of by phase and amplitude alone%s.",
+	fmt.Fprint(w, textui.Wrap(fmt.Sprintf("Simulated munitions (%s) read as your instrument would, each group scored by a screen fitted without it: %.0f%% warned of by phase and amplitude alone%s.",
 		s.Library, 100*s.Caught, withDepth), 78, "  "))
 	fmt.Fprintf(w, "  %-32s %9s %11s\n", "held-out group", "no depth", col)
 	for _, gc := range s.Groups {
-		d := pct(gc.Caught)
+		d := textui.Pct(gc.Caught)
 		if s.Depth {
-			d = pct(gc.CaughtDepth)
+			d = textui.Pct(gc.CaughtDepth)
 		}
-		fmt.Fprintf(w, "  %-32s %9s %11s\n", trunc(gc.Group, 32), pct(gc.Caught), d)
+		fmt.Fprintf(w, "  %-32s %9s %11s\n", textui.Trunc(gc.Group, 32), textui.Pct(gc.Caught), d)
 	}
 	by := "by phase and amplitude"
 	if s.Depth {
@@ -175,42 +157,7 @@ func writeScreenEvaluation(w io.Writer, s *train.ScreenEvaluation) {
 	if s.OwnHazardDigs > 0 {
 		line += fmt.Sprintf("; it catches %.0f%% of your %d hazardous digs", 100*s.OwnHazardCaught, s.OwnHazardDigs)
 	}
-	fmt.Fprint(w, wrap(line+".", 78, "  "))
-}
-
-// wrap breaks text into lines of at most width columns, each indented.
-func wrap(text string, width int, indent string) string {
-	var b strings.Builder
-	line := indent
-	for _, word := range strings.Fields(text) {
-		if len([]rune(line))+len([]rune(word))+1 > width && strings.TrimSpace(line) != "" {
-			b.WriteString(strings.TrimRight(line, " ") + "\n")
-			line = indent + "  "
-		}
-		line += word + " "
-	}
-	if strings.TrimSpace(line) != "" {
-		b.WriteString(strings.TrimRight(line, " ") + "\n")
-	}
-	return b.String()
-}
-
-// wrapHanging is wrap with a hanging indent: the first line starts with
-// lead, the others at indent.
-func wrapHanging(lead, text string, width int, indent string) string {
-	var b strings.Builder
-	line := lead
-	for _, word := range strings.Fields(text) {
-		if len([]rune(line))+len([]rune(word))+1 > width && strings.TrimSpace(line) != "" {
-			b.WriteString(strings.TrimRight(line, " ") + "\n")
-			line = indent
-		}
-		line += word + " "
-	}
-	if strings.TrimSpace(line) != "" {
-		b.WriteString(strings.TrimRight(line, " ") + "\n")
-	}
-	return b.String()
+	fmt.Fprint(w, textui.Wrap(line+".", 78, "  "))
 }
 
 // writeConfusions lists the commonest mistakes, which read better in 80
@@ -238,6 +185,6 @@ func writeConfusions(w io.Writer, who string, classes []string, cm map[string]ma
 	}
 	fmt.Fprintf(w, "\nCommonest mistakes (%s, held-out)\n", who)
 	for _, x := range mixes[:min(8, len(mixes))] {
-		fmt.Fprintf(w, "  %-24s taken for %-24s %4d of %d\n", trunc(x.truth, 24), trunc(x.taken, 24), x.n, x.of)
+		fmt.Fprintf(w, "  %-24s taken for %-24s %4d of %d\n", textui.Trunc(x.truth, 24), textui.Trunc(x.taken, 24), x.n, x.of)
 	}
 }

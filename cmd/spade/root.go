@@ -12,6 +12,8 @@ import (
 	"strings"
 	"syscall"
 
+	"github.com/spade-detect/spade/internal/textui"
+
 	"github.com/spade-detect/spade/datasets"
 	"github.com/spade-detect/spade/features"
 	"github.com/spf13/cobra"
@@ -257,7 +259,7 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 			code = exitError
 		}
 	}()
-	g := &globalOptions{stdin: stdin, stdout: stdout, stderr: stderr, isTerminal: stderrIsTerminal(stderr), ctx: ctx}
+	g := &globalOptions{stdin: stdin, stdout: stdout, stderr: stderr, isTerminal: textui.IsTerminal(stderr), ctx: ctx}
 	root := newRootCommand(g)
 	root.SetArgs(args)
 	root.SetIn(stdin)

@@ -9,6 +9,8 @@ import (
 	"strconv"
 	"strings"
 
+	"github.com/spade-detect/spade/internal/textui"
+
 	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/features"
 	"github.com/spade-detect/spade/train"
@@ -76,7 +78,7 @@ func runTrain(ctx context.Context, g *globalOptions, opts trainOptions, args []s
 	if opts.trees < 1 {
 		return usagef("--trees must be at least 1")
 	}
-	if opts.output == "-" && stderrIsTerminal(g.stdout) {
+	if opts.output == "-" && textui.IsTerminal(g.stdout) {
 		return usagef("-o - writes the model (binary) to standard output, which is a terminal here: give a file name, or pipe it")
 	}
 	if err := opts.format.check(); err != nil {
@@ -93,13 +95,13 @@ func runTrain(ctx context.Context, g *globalOptions, opts trainOptions, args []s
 	spec := features.NewSpec(log.Freqs, log.HasDisplayID)
 	g.specNotes(spec)
 	bar := g.progress(opts.trees+screenTrees(opts.noScreen, log), "growing trees", opts.format.json())
-	step := func(int) { bar.step(1) }
+	step := func(int) { bar.Step(1) }
 	bundle, err := train.TrainBundle(ctx, log, spec, train.TrainOptions{
 		Label: kind, Version: version, Skipped: len(log.Bad) + log.Unlabelled,
 		Forest: train.Options{Trees: opts.trees, Seed: opts.seed, MaxSamples: samples, Progress: step},
 		Screen: train.ScreenOptions{Progress: step}, NoScreen: opts.noScreen,
 	})
-	bar.done()
+	bar.Done()
 	if err != nil {
 		return err
 	}
@@ -126,9 +128,9 @@ func runTrain(ctx context.Context, g *globalOptions, opts trainOptions, args []s
 	s := bundle.Summary
 	fmt.Fprintf(g.stdout, "Trained on %d digs, %d classes (%s), %d trees; wrote %s\n", s.Digs, len(bundle.Classes), kind, s.Trees, opts.output)
 	fmt.Fprintf(g.stdout, "Out-of-bag: accuracy %.3f, balanced accuracy %.3f, log-loss %.3f\n", s.OutOfBag.Accuracy, s.OutOfBag.BalancedAccuracy, s.OutOfBag.LogLoss)
-	fmt.Fprint(g.stdout, wrap(hazardStatus(bundle).Text, 78, ""))
+	fmt.Fprint(g.stdout, textui.Wrap(hazardStatus(bundle).Text, 78, ""))
 	for _, n := range trainNotes(bundle, log) {
-		fmt.Fprint(g.stdout, wrap("note: "+n+".", 78, ""))
+		fmt.Fprint(g.stdout, textui.Wrap("note: "+n+".", 78, ""))
 	}
 	fmt.Fprintln(g.stdout, "For the full report next to the single-number baseline: spade evaluate LOG")
 	return nil

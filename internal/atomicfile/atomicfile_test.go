@@ -1,4 +1,4 @@
-package features
+package atomicfile
 
 import (
 	"context"
@@ -19,7 +19,7 @@ func TestAtomicWriteModes(t *testing.T) {
 	old := syscall.Umask(0o027)
 	defer syscall.Umask(old)
 	fresh := filepath.Join(dir, "new.csv")
-	if err := WriteFileAtomic(fresh, func(w io.Writer) error { _, err := io.WriteString(w, "a\n"); return err }); err != nil {
+	if err := Write(fresh, func(w io.Writer) error { _, err := io.WriteString(w, "a\n"); return err }); err != nil {
 		t.Fatal(err)
 	}
 	if fi, _ := os.Stat(fresh); fi.Mode().Perm() != 0o640 {
@@ -28,7 +28,7 @@ func TestAtomicWriteModes(t *testing.T) {
 	kept := filepath.Join(dir, "kept.csv")
 	os.WriteFile(kept, []byte("old\n"), 0o600)
 	os.Chmod(kept, 0o604)
-	if err := WriteFileAtomic(kept, func(w io.Writer) error { _, err := io.WriteString(w, "new\n"); return err }); err != nil {
+	if err := Write(kept, func(w io.Writer) error { _, err := io.WriteString(w, "new\n"); return err }); err != nil {
 		t.Fatal(err)
 	}
 	if fi, _ := os.Stat(kept); fi.Mode().Perm() != 0o604 {
@@ -57,7 +57,7 @@ func TestAtomicWriteStaleTempsAndInterrupt(t *testing.T) {
 	// Ctrl-C during the write: it stops at the next write, the old file
 	// stays, and its temporary file goes.
 	ctx, cancel := context.WithCancel(context.Background())
-	err := WriteFileAtomicContext(ctx, path, func(w io.Writer) error {
+	err := WriteContext(ctx, path, func(w io.Writer) error {
 		if _, err := io.WriteString(w, "half a "); err != nil {
 			return err
 		}
@@ -84,7 +84,7 @@ func TestAtomicWriteToDevicesAndLinks(t *testing.T) {
 	// -o /dev/null once renamed a regular file over the device (as root).
 	// A device is written in place; a symbolic link keeps pointing at the
 	// file, which is replaced; a folder is refused.
-	if err := WriteFileAtomic(os.DevNull, func(w io.Writer) error { _, err := io.WriteString(w, "gone\n"); return err }); err != nil {
+	if err := Write(os.DevNull, func(w io.Writer) error { _, err := io.WriteString(w, "gone\n"); return err }); err != nil {
 		t.Fatal(err)
 	}
 	if fi, err := os.Stat(os.DevNull); err != nil || fi.Mode()&os.ModeDevice == 0 {
@@ -97,7 +97,7 @@ func TestAtomicWriteToDevicesAndLinks(t *testing.T) {
 	if err := os.Symlink(target, link); err != nil {
 		t.Skip("no symbolic links here")
 	}
-	if err := WriteFileAtomic(link, func(w io.Writer) error { _, err := io.WriteString(w, "new\n"); return err }); err != nil {
+	if err := Write(link, func(w io.Writer) error { _, err := io.WriteString(w, "new\n"); return err }); err != nil {
 		t.Fatal(err)
 	}
 	if fi, _ := os.Lstat(link); fi.Mode()&os.ModeSymlink == 0 {
@@ -106,7 +106,7 @@ func TestAtomicWriteToDevicesAndLinks(t *testing.T) {
 	if b, _ := os.ReadFile(target); string(b) != "new\n" {
 		t.Errorf("the link's file holds %q", b)
 	}
-	if err := WriteFileAtomic(dir, func(io.Writer) error { return nil }); err == nil {
+	if err := Write(dir, func(io.Writer) error { return nil }); err == nil {
 		t.Error("a folder as output was accepted")
 	}
 }

@@ -1,4 +1,7 @@
-package features
+// Package atomicfile writes files so that a reader, or an interrupted run,
+// sees the old file or the new one and never half of one: spade's models,
+// reports and plots go through it, so that nothing the user owns is lost.
+package atomicfile
 
 import (
 	"context"
@@ -13,7 +16,7 @@ import (
 	"time"
 )
 
-// StaleTemp is how old a temporary file of WriteFileAtomic's must be before
+// StaleTemp is how old a temporary file of Write's must be before
 // a later write into the same folder removes it: such a file is left only
 // by a run killed outright (kill -9, a power cut), and a day is far longer
 // than any write takes, so a concurrent writer's file is never touched.
@@ -23,22 +26,22 @@ const StaleTemp = 24 * time.Hour
 // so that the clean-up removes its own and nothing of anyone else's.
 const tempMarker = ".spade-tmp-"
 
-// WriteFileAtomic writes a file through a temporary file in the same folder,
+// Write writes a file through a temporary file in the same folder,
 // synced and then renamed over path, so that a reader (or an interrupted
 // run) sees the old file or the new one and never half of one. write gets the
 // temporary file; when it fails, the old file is left as it was.
-func WriteFileAtomic(path string, write func(io.Writer) error) error {
-	return WriteFileAtomicContext(context.Background(), path, write)
+func Write(path string, write func(io.Writer) error) error {
+	return WriteContext(context.Background(), path, write)
 }
 
-// WriteFileAtomicContext is WriteFileAtomic that stops when ctx is done
+// WriteContext is Write that stops when ctx is done
 // (Ctrl-C): the write fails with ctx's error at its next write call, the
 // temporary file is removed and the old file stays as it was.
 //
 // The new file takes the mode of the file it replaces; a new path gets
 // 0666 less the umask, as any file the user's shell creates. Temporary
 // files of spade's in the folder older than StaleTemp are removed first.
-func WriteFileAtomicContext(ctx context.Context, path string, write func(io.Writer) error) (err error) {
+func WriteContext(ctx context.Context, path string, write func(io.Writer) error) (err error) {
 	var mode fs.FileMode
 	keepMode := false
 	if fi, err := os.Stat(path); err == nil {
@@ -73,7 +76,7 @@ func WriteFileAtomicContext(ctx context.Context, path string, write func(io.Writ
 		}
 	}
 	if err != nil {
-		return fmt.Errorf("cannot write %s: %w", path, PathCause(err))
+		return fmt.Errorf("cannot write %s: %w", path, pathCause(err))
 	}
 	defer func() {
 		if err != nil {
@@ -88,18 +91,18 @@ func WriteFileAtomicContext(ctx context.Context, path string, write func(io.Writ
 		return err
 	}
 	if err = tmp.Sync(); err != nil {
-		return fmt.Errorf("cannot write %s: %w", path, PathCause(err))
+		return fmt.Errorf("cannot write %s: %w", path, pathCause(err))
 	}
 	if err = tmp.Close(); err != nil {
-		return fmt.Errorf("cannot write %s: %w", path, PathCause(err))
+		return fmt.Errorf("cannot write %s: %w", path, pathCause(err))
 	}
 	if keepMode {
 		if err = os.Chmod(tmp.Name(), mode); err != nil {
-			return fmt.Errorf("cannot write %s: %w", path, PathCause(err))
+			return fmt.Errorf("cannot write %s: %w", path, pathCause(err))
 		}
 	}
 	if err = os.Rename(tmp.Name(), path); err != nil {
-		return fmt.Errorf("cannot write %s: %w", path, PathCause(err))
+		return fmt.Errorf("cannot write %s: %w", path, pathCause(err))
 	}
 	return nil
 }
@@ -109,14 +112,14 @@ func WriteFileAtomicContext(ctx context.Context, path string, write func(io.Writ
 func writeInPlace(ctx context.Context, path string, write func(io.Writer) error) error {
 	f, err := os.OpenFile(path, os.O_WRONLY, 0)
 	if err != nil {
-		return fmt.Errorf("cannot write %s: %w", path, PathCause(err))
+		return fmt.Errorf("cannot write %s: %w", path, pathCause(err))
 	}
 	if err := write(ctxWriter{ctx, f}); err != nil {
 		f.Close()
 		return err
 	}
 	if err := f.Close(); err != nil {
-		return fmt.Errorf("cannot write %s: %w", path, PathCause(err))
+		return fmt.Errorf("cannot write %s: %w", path, pathCause(err))
 	}
 	return nil
 }
@@ -157,10 +160,9 @@ func globEscape(s string) string {
 	return string(out)
 }
 
-// PathCause drops the operation and path an *fs.PathError repeats, so that
-// a message names its file once: "cannot read model m.spade: no such file
-// or directory", and never the temporary file's name.
-func PathCause(err error) error {
+// pathCause drops the operation and path an *fs.PathError repeats, so that
+// a message names its file once, and never the temporary file's name.
+func pathCause(err error) error {
 	var pe *fs.PathError
 	if errors.As(err, &pe) {
 		return pe.Err

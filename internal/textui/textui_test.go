@@ -1,0 +1,61 @@
+package textui
+
+import (
+	"strings"
+	"testing"
+)
+
+func TestProbNeverSaysCertain(t *testing.T) {
+	// spade's probabilities are never shown as 0% or 100% (issue 10): a
+	// probability is never a guarantee.
+	for _, c := range []struct {
+		p    float64
+		want string
+	}{{0, "<1%"}, {0.0099, "<1%"}, {0.01, "1.0%"}, {0.5, "50.0%"}, {0.99, "99.0%"}, {0.995, ">99%"}, {1, ">99%"}} {
+		if got := Prob(c.p, 1); got != c.want {
+			t.Errorf("Prob(%g) = %q, want %q", c.p, got, c.want)
+		}
+	}
+}
+
+func TestOrdinal(t *testing.T) {
+	// English ordinal suffixes (common practice, no source).
+	for n, want := range map[int]string{1: "1st", 2: "2nd", 3: "3rd", 4: "4th", 11: "11th", 12: "12th", 13: "13th", 21: "21st", 99: "99th", 101: "101st", 111: "111th"} {
+		if got := Ordinal(n); got != want {
+			t.Errorf("Ordinal(%d) = %q, want %q", n, got, want)
+		}
+	}
+}
+
+func TestWrapKeepsWidth(t *testing.T) {
+	text := strings.Repeat("ferrous conductive phase amplitude ", 12)
+	for _, out := range []string{Wrap(text, 40, "  "), WrapHanging("A1  ", text, 40, "    ")} {
+		lines := strings.Split(strings.TrimSuffix(out, "\n"), "\n")
+		if len(lines) < 5 {
+			t.Fatalf("%d lines, want the text broken into several:\n%s", len(lines), out)
+		}
+		for _, l := range lines {
+			if n := len([]rune(l)); n > 40 {
+				t.Errorf("line of %d columns > 40: %q", n, l)
+			}
+		}
+		if got := strings.Join(strings.Fields(out), " "); got != strings.TrimSpace(text) && !strings.HasPrefix(got, "A1 ") {
+			t.Errorf("words lost or reordered")
+		}
+	}
+	if got := Wrap("", 40, "  "); got != "" {
+		t.Errorf("Wrap of nothing = %q, want nothing", got)
+	}
+}
+
+func TestBarAndTrunc(t *testing.T) {
+	if got := Bar(0.5, 10); got != "█████·····" {
+		t.Errorf("Bar(0.5, 10) = %q", got)
+	}
+	if got := Bar(1.7, 4); got != "████" {
+		t.Errorf("Bar clamps above 1: %q", got)
+	}
+	if got := Trunc("aluminium/ring-pull", 8); got != "alumini…" || len([]rune(got)) != 8 {
+		t.Errorf("Trunc = %q, want 8 runes ending in …", got)
+	}
+}
