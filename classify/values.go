@@ -260,3 +260,14 @@ func (v *Values) Split(classes []string) (keepers, hazards []string) {
 	}
 	return keepers, hazards
 }
+
+// Roles splits classes into keepers and hazards by v. With no values (v
+// nil) no class is a keeper unless the user names it, and the default
+// hazards (any shape "ordnance") are still marked.
+func Roles(v *Values, classes []string) (keepers, hazards []string) {
+	if v == nil {
+		_, hazards = DefaultValues().Split(classes)
+		return nil, hazards
+	}
+	return v.Split(classes)
+}

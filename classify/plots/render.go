@@ -7,6 +7,8 @@ import (
 	"path/filepath"
 	"strings"
 
+	"github.com/spade-detect/spade/internal/atomicfile"
+
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
@@ -132,4 +134,14 @@ func (r *rects) DataRange() (xmin, xmax, ymin, ymax float64) {
 		ymin, ymax = min(ymin, b[2]), max(ymax, b[3])
 	}
 	return
+}
+
+// WriteFile draws into a file atomically (a temporary file, then a rename),
+// in the format its name asks for (FormatOf).
+func WriteFile(path string, draw func(w io.Writer, format string) error) error {
+	format, err := FormatOf(path)
+	if err != nil {
+		return err
+	}
+	return atomicfile.Write(path, func(w io.Writer) error { return draw(w, format) })
 }

@@ -3,15 +3,10 @@ package main
 import (
 	"bufio"
 	"context"
-	"encoding/csv"
-	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
 	"runtime/debug"
-	"slices"
-	"strconv"
-	"strings"
 
 	"github.com/spade-detect/spade/internal/textui"
 
@@ -131,24 +126,26 @@ func runClassify(ctx context.Context, g *globalOptions, opts classifyOptions, ar
 	defer bar.Done()
 	return g.writeOutput(opts.output, func(w io.Writer) error {
 		out := newResultWriter(w, opts.format.value, bundle.Classes, opts.top, c.Warnings())
+		n := 0
 		err := classify.Stream(ctx, c, next, name, func(r *classify.Result) error {
 			bar.Step(1)
-			return out.write(r)
+			n++
+			return out.Write(r)
 		})
 		var pe *features.ParseError
-		if err != nil && (!errors.As(err, &pe) || out.n == 0) {
+		if err != nil && (!errors.As(err, &pe) || n == 0) {
 			return err // an interrupt, a write error, or nothing good: nothing is kept
 		}
 		if err != nil {
 			// A bad row: the results of every reading before it are
 			// written, and the run still fails on it.
-			out.stopped(err)
+			out.Stop(err)
 		}
-		if cerr := out.close(); cerr != nil {
+		if cerr := out.Close(); cerr != nil {
 			return cerr
 		}
 		if err != nil {
-			return keepOutput{fmt.Errorf("%w (the results of the %s before it are written)", err, features.Plural(out.n, "reading"))}
+			return keepOutput{fmt.Errorf("%w (the results of the %s before it are written)", err, features.Plural(n, "reading"))}
 		}
 		return nil
 	})
@@ -198,187 +195,15 @@ func readingSource(g *globalOptions, opts classifyOptions, args []string) (func(
 		}, nil
 }
 
-// resultWriter writes results in one of the three views.
-type resultWriter struct {
-	w        *bufio.Writer
-	format   string
-	classes  []string
-	top      int
-	n        int
-	cw       *csv.Writer
-	warnings []string
-}
-
-// newResultWriter writes results; warnings about the model as a whole
-// (above all, that it cannot warn of ordnance) head the table and the CSV
-// (as comment lines), and every JSON result carries its hazard check.
-func newResultWriter(w io.Writer, format string, classes []string, top int, warnings []string) *resultWriter {
-	return &resultWriter{w: bufio.NewWriter(w), format: format, classes: classes, top: top, warnings: warnings}
-}
-
-func (o *resultWriter) write(r *classify.Result) error {
-	defer func() { o.n++ }()
-	switch o.format {
+// newResultWriter writes results in the view asked for; warnings about
+// the model as a whole (above all, that it cannot warn of ordnance) head
+// the table and the CSV, and every JSON result carries its hazard check.
+func newResultWriter(w io.Writer, format string, classes []string, top int, warnings []string) classify.ResultWriter {
+	switch format {
 	case "json":
-		b, err := json.Marshal(r)
-		if err != nil {
-			return err
-		}
-		if o.n == 0 {
-			o.w.WriteString("[\n")
-		} else {
-			o.w.WriteString(",\n")
-		}
-		_, err = o.w.Write(b)
-		return err
+		return classify.NewJSONWriter(w)
 	case "csv":
-		if o.cw == nil {
-			for _, w := range o.warnings {
-				fmt.Fprintf(o.w, "# %s\n", w)
-			}
-			o.cw = csv.NewWriter(o.w)
-			header := []string{"dig", "caution", "hazard_check", "hazard_probability", "history_hazard", "screen_score", "top_class", "top_probability", "verdict", "expected_value", "novelty_percentile", "unfamiliar", "dig_to_learn", "nearest_dig", "nearest_class", "nearest_distance"}
-			for _, c := range o.classes {
-				header = append(header, "p_"+c)
-			}
-			o.cw.Write(header)
-		}
-		h := r.Hazard
-		check := "available"
-		if !h.Available {
-			check = "unavailable"
-		}
-		rec := []string{r.Dig, h.Tier, check, ff(h.Probability), ff(h.History), ff(h.Screen), r.Top.Class, ff(r.Top.Probability), string(r.Decision.Verdict), ff(r.Decision.ExpectedValue),
-			ff(r.Novelty.Percentile), strconv.FormatBool(r.Novelty.Unfamiliar), strconv.FormatBool(r.Learn.Worth)}
-		if len(r.Neighbours) > 0 {
-			rec = append(rec, r.Neighbours[0].Dig, r.Neighbours[0].Class, ff(r.Neighbours[0].Distance))
-		} else {
-			rec = append(rec, "", "", "")
-		}
-		for _, c := range o.classes {
-			rec = append(rec, ff(r.Probabilities[c]))
-		}
-		return o.cw.Write(rec)
-	default:
-		if o.n == 0 {
-			for _, w := range o.warnings {
-				fmt.Fprint(o.w, textui.Wrap("!! "+w, 78, ""))
-			}
-		}
-		writeResultTable(o.w, r, o.top)
-		return nil
+		return classify.NewCSVWriter(w, classes, warnings)
 	}
-}
-
-// stopped ends the results with the error that stopped them, where a
-// person reads them: a comment line in CSV, a line in the table. (JSON's
-// array stays valid; the exit status and standard error say it stopped.)
-func (o *resultWriter) stopped(err error) {
-	switch o.format {
-	case "csv":
-		if o.cw != nil {
-			o.cw.Flush()
-		}
-		fmt.Fprintf(o.w, "# stopped: %s\n", oneLine(err))
-	case "table":
-		fmt.Fprint(o.w, textui.Wrap("stopped: "+oneLine(err), 78, ""))
-	}
-}
-
-func ff(v float64) string { return strconv.FormatFloat(v, 'f', 4, 64) }
-
-func (o *resultWriter) close() error {
-	switch o.format {
-	case "json":
-		if o.n == 0 {
-			o.w.WriteString("[")
-		}
-		o.w.WriteString("\n]\n")
-	case "csv":
-		if o.cw != nil {
-			o.cw.Flush()
-			if err := o.cw.Error(); err != nil {
-				return err
-			}
-		}
-	}
-	return o.w.Flush()
-}
-
-// writeResultTable prints one reading in at most 80 columns; a caution is
-// the first thing said.
-func writeResultTable(w io.Writer, r *classify.Result, top int) {
-	fmt.Fprintf(w, "%s\n", strings.Repeat("─", 78))
-	if c := r.Caution; c != nil {
-		fmt.Fprint(w, textui.WrapHanging(r.Dig+"  ", "!! "+c.Message, 78, "     "))
-		fmt.Fprint(w, textui.Wrap(hazardLine(r)+"; a probability is never a guarantee", 78, "     "))
-	} else {
-		fmt.Fprintf(w, "%s  %s\n", r.Dig, verdictLine(r))
-	}
-	if r.Novelty.Unfamiliar {
-		fmt.Fprint(w, textui.Wrap("?? "+r.Decision.Note, 78, "     "))
-	}
-	for i, cp := range r.Ranked {
-		// The top classes, and always every class behind a caution.
-		hazard := r.Caution != nil && slices.Contains(r.Caution.Classes, cp.Class)
-		if !hazard && (i >= top || cp.Probability < 0.005) {
-			continue
-		}
-		fmt.Fprintf(w, "     %-28s %s %6s\n", textui.Trunc(cp.Class, 28), textui.Bar(cp.Probability, 30), textui.Prob(cp.Probability, 1))
-	}
-	fmt.Fprint(w, textui.Wrap("material: "+shareList(r.Materials, 4), 78, "     "))
-	fmt.Fprint(w, textui.Wrap("shape: "+shareList(r.Shapes, 4), 78, "     "))
-	if r.Caution == nil {
-		fmt.Fprint(w, textui.Wrap(hazardLine(r), 78, "     "))
-	}
-	fmt.Fprintf(w, "     novelty: %s percentile of your digs\n", textui.Ordinal(int(r.Novelty.Percentile)))
-	if r.Learn.Worth {
-		fmt.Fprint(w, textui.Wrap(fmt.Sprintf("worth digging to learn: the model is unsure (top class %s), so what comes out would teach it most", textui.Prob(r.Top.Probability, 0)), 78, "     "))
-	}
-	var nb []string
-	for _, n := range r.Neighbours {
-		nb = append(nb, fmt.Sprintf("%s %s (%s, %.2f)", n.Dig, n.Class, n.Date, n.Distance))
-	}
-	fmt.Fprint(w, textui.Wrap("nearest past digs: "+strings.Join(nb, "; "), 78, "     "))
-}
-
-// hazardLine says what the hazard check found, in one line.
-func hazardLine(r *classify.Result) string {
-	h := r.Hazard
-	if !h.Available {
-		return "hazard check: UNAVAILABLE for this model"
-	}
-	parts := []string{}
-	if h.ScreenUsed != "" {
-		parts = append(parts, fmt.Sprintf("ordnance screen %s (by %s)", textui.Prob(h.Screen, 0), h.ScreenUsed))
-	}
-	if h.History >= 0.01 || r.Caution != nil && len(r.Caution.Classes) > 0 {
-		parts = append(parts, "your hazardous classes "+textui.Prob(h.History, 1))
-	}
-	return fmt.Sprintf("hazard check: %s; %s", h.Tier, strings.Join(parts, ", "))
-}
-
-func verdictLine(r *classify.Result) string {
-	d := r.Decision
-	switch d.Verdict {
-	case "unsure":
-		return fmt.Sprintf("UNSURE: looks most like %s (%s), but see below", r.Top.Class, textui.Prob(r.Top.Probability, 0))
-	case classify.VerdictNone:
-		return fmt.Sprintf("no verdict: looks most like %s (%s); give --values for one", r.Top.Class, textui.Prob(r.Top.Probability, 0))
-	case "dig":
-		return fmt.Sprintf("DIG: %s %s, expected value %+.1f by your values", r.Top.Class, textui.Prob(r.Top.Probability, 0), d.ExpectedValue)
-	default:
-		return fmt.Sprintf("skip: %s %s, expected value %+.1f by your values", r.Top.Class, textui.Prob(r.Top.Probability, 0), d.ExpectedValue)
-	}
-}
-
-func shareList(ps []classify.ClassP, n int) string {
-	var s []string
-	for _, p := range ps[:min(n, len(ps))] {
-		if p.Probability < 0.01 {
-			break
-		}
-		s = append(s, p.Class+" "+textui.Prob(p.Probability, 0))
-	}
-	return strings.Join(s, ", ")
+	return &tableWriter{w: bufio.NewWriter(w), top: top, warnings: warnings}
 }

@@ -160,7 +160,7 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 	}
 	for _, p := range pics {
 		path := filepath.Join(opts.dir, p.name)
-		if err := writePlot(path, p.draw); err != nil {
+		if err := plots.WriteFile(path, p.draw); err != nil {
 			return fmt.Errorf("demo: %w", err)
 		}
 		written = append(written, path)

@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"encoding/csv"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -11,7 +10,6 @@ import (
 	"strconv"
 	"strings"
 
-	"github.com/spade-detect/spade/internal/atomicfile"
 	"github.com/spade-detect/spade/internal/textui"
 
 	"github.com/spade-detect/spade/classify"
@@ -145,7 +143,7 @@ func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args
 		res.Notes = append(res.Notes, "This log has display IDs only: the ranges come from your digs alone. Log phase and amplitude at two or more frequencies and overlap also shows what spade resolves in each range.")
 	}
 	if opts.plot != "" {
-		if err := writePlot(opts.plot, func(w io.Writer, format string) error {
+		if err := plots.WriteFile(opts.plot, func(w io.Writer, format string) error {
 			return plots.Overlap(w, format, res, unit, plotPriority(vals, ds.Classes))
 		}); err != nil {
 			return err
@@ -159,7 +157,7 @@ func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args
 			enc.SetIndent("", "  ")
 			return enc.Encode(res)
 		case "csv":
-			return writeOverlapCSV(w, res)
+			return res.WriteCSV(w)
 		}
 		writeOverlapTable(w, res, vals == nil)
 		return nil
@@ -167,7 +165,7 @@ func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args
 }
 
 // modelProbs takes the digs' held-out probabilities from a model file
-// (overlap.HeldOut), after the checks a command line needs.
+// (Bundle.HeldOut), after the checks a command line needs.
 func modelProbs(path string, kind features.Label, log *features.Log, ds *train.Dataset) ([][]float64, []string, error) {
 	b, err := train.Load(path)
 	if err != nil {
@@ -176,8 +174,8 @@ func modelProbs(path string, kind features.Label, log *features.Log, ds *train.D
 	if b.Label != kind {
 		return nil, nil, usagef("the model tells %s apart; give --label %s", b.Label, b.Label)
 	}
-	probs, notes, err := overlap.HeldOut(b, log, ds)
-	if errors.Is(err, overlap.ErrOtherLog) {
+	probs, notes, err := b.HeldOut(log, ds)
+	if errors.Is(err, train.ErrOtherLog) {
 		return nil, nil, fmt.Errorf("--model %s: %w; train a model on this log, or leave out --model to cross-validate", path, err)
 	}
 	return probs, notes, err
@@ -186,13 +184,7 @@ func modelProbs(path string, kind features.Label, log *features.Log, ds *train.D
 // analyseOverlap runs the analysis on an axis (overlap.Axis), with the
 // keepers and hazards of the values file.
 func analyseOverlap(ds *train.Dataset, probs [][]float64, vals *classify.Values, axis []float64, by string, o overlap.Options) (*overlap.Result, error) {
-	if vals != nil {
-		o.Keepers, o.Hazards = vals.Split(ds.Classes)
-	} else {
-		// No values file: no keepers unless the user names them, and the
-		// default hazards (any shape "ordnance") still marked.
-		_, o.Hazards = classify.DefaultValues().Split(ds.Classes)
-	}
+	o.Keepers, o.Hazards = classify.Roles(vals, ds.Classes)
 	return overlap.Analyse(by, axis, ds.Classes, ds.Y, probs, o)
 }
 
@@ -241,26 +233,6 @@ func writeOverlapTable(w io.Writer, r *overlap.Result, noValues bool) {
 
 func num(v float64) string { return strconv.FormatFloat(math.Round(v*100)/100, 'f', -1, 64) }
 
-func writeOverlapCSV(w io.Writer, r *overlap.Result) error {
-	for _, n := range r.Notes {
-		// A comment line, as spade's own readers skip them.
-		fmt.Fprintf(w, "# note: %s\n", n)
-	}
-	cw := csv.NewWriter(w)
-	cw.Write([]string{"from", "to", "digs", "entropy_bits", "ambiguous", "top_class", "top_share", "second_class", "second_share"})
-	for _, b := range r.Bins {
-		rec := []string{num(b.From), num(b.To), strconv.Itoa(b.Digs), ff(b.Entropy), strconv.FormatBool(b.Ambiguous), b.Classes[0].Class, ff(b.Classes[0].Share)}
-		if len(b.Classes) > 1 {
-			rec = append(rec, b.Classes[1].Class, ff(b.Classes[1].Share))
-		} else {
-			rec = append(rec, "", "")
-		}
-		cw.Write(rec)
-	}
-	cw.Flush()
-	return cw.Error()
-}
-
 // plotPriority lists hazards, then keepers, for the overlap plot's colours.
 func plotPriority(vals *classify.Values, classes []string) []string {
 	if vals == nil {
@@ -268,13 +240,4 @@ func plotPriority(vals *classify.Values, classes []string) []string {
 	}
 	keepers, hazards := vals.Split(classes)
 	return append(hazards, keepers...)
-}
-
-// writePlot draws into a file atomically, in the format its name asks for.
-func writePlot(path string, draw func(io.Writer, string) error) error {
-	format, err := plots.FormatOf(path)
-	if err != nil {
-		return err
-	}
-	return atomicfile.Write(path, func(w io.Writer) error { return draw(w, format) })
 }

@@ -1,4 +1,4 @@
-package overlap
+package train
 
 import (
 	"errors"
@@ -6,7 +6,6 @@ import (
 	"math"
 
 	"github.com/spade-detect/spade/features"
-	"github.com/spade-detect/spade/train"
 )
 
 // ErrOtherLog is HeldOut's refusal of a model trained on another log.
@@ -21,7 +20,7 @@ var ErrOtherLog = errors.New("the model was trained on another log")
 // column), and another log's out-of-bag figures would be another dig's, so
 // a dig sharing an id with a training dig but not its features or class is
 // ErrOtherLog. The notes say how many digs the model never saw.
-func HeldOut(b *train.Bundle, log *features.Log, ds *train.Dataset) ([][]float64, []string, error) {
+func (b *Bundle) HeldOut(log *features.Log, ds *Dataset) ([][]float64, []string, error) {
 	if err := b.Spec.CheckFreqs(log.Freqs); err != nil {
 		return nil, nil, err
 	}
