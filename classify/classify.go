@@ -419,3 +419,26 @@ func ReferenceScores(b *train.Bundle) []float64 {
 	}
 	return ref
 }
+
+// HazardStatus says whether a model can warn of ordnance, for every view
+// of a model (train, inspect, evaluate), in every format.
+type HazardStatus struct {
+	Available bool          `json:"available"`
+	Screen    *train.Screen `json:"screen,omitempty"`
+	Text      string        `json:"text"`
+}
+
+// HazardStatusOf is a model's HazardStatus: its ordnance screen, else its
+// history's own hazardous classes (any shape "ordnance"), else none.
+func HazardStatusOf(b *train.Bundle) HazardStatus {
+	if b.Screen != nil {
+		return HazardStatus{Available: true, Screen: b.Screen, Text: b.Screen.Describe() + "."}
+	}
+	defaults := DefaultValues()
+	for _, c := range b.Classes {
+		if defaults.IsHazard(c) {
+			return HazardStatus{Available: true, Text: "ordnance screen off: the hazard check rests on your history's own hazardous classes alone."}
+		}
+	}
+	return HazardStatus{Text: UnavailableNote(b, defaults) + "."}
+}

@@ -3,11 +3,13 @@ package datasets
 import (
 	"bytes"
 	_ "embed"
+	"encoding/csv"
 	"fmt"
 	"io"
 	"math"
 	"math/cmplx"
 	"math/rand/v2"
+	"slices"
 
 	"github.com/spade-detect/spade/features"
 )
@@ -136,4 +138,25 @@ func GenerateDemoReadings() ([]byte, error) {
 	opts.Notes = notes
 	err := features.WriteCSV(&buf, freqs, digs, opts)
 	return buf.Bytes(), err
+}
+
+// DemoReadingNotes maps each embedded demo reading's dig id to its note
+// column, which says what the simulated object really was. The note is
+// kept out of every model; the demo shows it beside the result.
+func DemoReadingNotes() map[string]string {
+	r := csv.NewReader(bytes.NewReader(DemoReadings))
+	r.Comment = '#'
+	rows, err := r.ReadAll()
+	notes := map[string]string{}
+	if err != nil || len(rows) == 0 {
+		return notes
+	}
+	dig, note := slices.Index(rows[0], "dig"), slices.Index(rows[0], "note")
+	if dig < 0 || note < 0 {
+		return notes
+	}
+	for _, row := range rows[1:] {
+		notes[row[dig]] = row[note]
+	}
+	return notes
 }

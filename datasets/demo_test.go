@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"flag"
 	"os"
+	"strings"
 	"testing"
 
 	"github.com/spade-detect/spade/features"
@@ -65,5 +66,25 @@ func TestDemoHistoryReads(t *testing.T) {
 	}
 	if len(rd.Digs) != len(demoReadings) || rd.Digs[0].Labelled(features.LabelBoth) {
 		t.Errorf("readings: %d rows, first labelled %v", len(rd.Digs), rd.Digs[0].Labelled(features.LabelBoth))
+	}
+}
+
+func TestDemoReadingNotesNameEveryReading(t *testing.T) {
+	// Every embedded demo reading says what it really was (the demo prints
+	// it beside the result), and the notes come from the simulator.
+	notes := DemoReadingNotes()
+	rows := 0
+	for _, l := range strings.Split(string(DemoReadings), "\n") {
+		if l != "" && !strings.HasPrefix(l, "#") && !strings.HasPrefix(l, "dig,") {
+			rows++
+		}
+	}
+	if len(notes) != rows || rows == 0 {
+		t.Fatalf("%d notes for %d readings", len(notes), rows)
+	}
+	for id, n := range notes {
+		if !strings.HasPrefix(n, "simulated: ") {
+			t.Errorf("%s: note %q does not say it is simulated", id, n)
+		}
 	}
 }

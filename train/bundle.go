@@ -9,7 +9,6 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
-	"github.com/spade-detect/spade/internal/atomicfile"
 	"hash/crc32"
 	"io"
 	"math"
@@ -17,6 +16,7 @@ import (
 	"slices"
 
 	"github.com/spade-detect/spade/features"
+	"github.com/spade-detect/spade/internal/atomicfile"
 )
 
 // The model file:

@@ -5,7 +5,6 @@ import (
 	"context"
 	"encoding/binary"
 	"errors"
-	"github.com/spade-detect/spade/internal/atomicfile"
 	"hash/crc32"
 	"io"
 	"math"
@@ -16,6 +15,7 @@ import (
 
 	"github.com/spade-detect/spade/datasets"
 	"github.com/spade-detect/spade/features"
+	"github.com/spade-detect/spade/internal/atomicfile"
 )
 
 func TestSaveLoadSameProbabilities(t *testing.T) {

@@ -2,10 +2,13 @@ package train
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"math/rand/v2"
 	"slices"
 	"strings"
+
+	"github.com/spade-detect/spade/features"
 )
 
 // StratifiedFolds assigns each row a fold in [0, k) so that every class is
@@ -359,4 +362,36 @@ func GroupFolds(groups []string, k int) ([]int, int, error) {
 		fold[i] = of[g]
 	}
 	return fold, k, nil
+}
+
+// ErrGroupBy is GroupsOf's refusal of an unknown grouping.
+var ErrGroupBy = errors.New("want site, date or month")
+
+// GroupsOf is each dig's group for leave-group-out folds (EvalOptions
+// Groups) by its site, date, or month ("" for none: nil). A dig without
+// the column asked for is a *features.ParseError at its line.
+func GroupsOf(log *features.Log, by string) ([]string, error) {
+	if by == "" {
+		return nil, nil
+	}
+	column := map[string]string{"site": "site", "date": "date", "month": "date"}[by]
+	if column == "" {
+		return nil, fmt.Errorf("%w, got %q", ErrGroupBy, by)
+	}
+	groups := make([]string, len(log.Digs))
+	for i := range log.Digs {
+		d := &log.Digs[i]
+		g := d.Date
+		switch by {
+		case "site":
+			g = d.Site
+		case "month":
+			g = d.Date[:min(7, len(d.Date))]
+		}
+		if g == "" {
+			return nil, &features.ParseError{File: log.Name, Line: d.Line, Column: column, Err: fmt.Errorf("%w: --group %s needs a %s on every row", features.ErrMissingValue, by, column)}
+		}
+		groups[i] = g
+	}
+	return groups, nil
 }

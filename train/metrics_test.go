@@ -1,9 +1,12 @@
 package train
 
 import (
+	"errors"
 	"math"
+	"slices"
 	"testing"
 
+	"github.com/spade-detect/spade/features"
 	"gonum.org/v1/gonum/floats/scalar"
 )
 
@@ -127,5 +130,29 @@ func TestBaselineBins(t *testing.T) {
 	}
 	if len(b.Cuts) != 7 { // min(max(400/50, 4), 25) = 8 bins
 		t.Errorf("%d cuts, want 7", len(b.Cuts))
+	}
+}
+
+func TestGroupsOf(t *testing.T) {
+	log := &features.Log{Name: "g.csv", Digs: []features.Dig{
+		{Line: 2, Site: "field A", Date: "2025-04-03"},
+		{Line: 3, Site: "beach", Date: "2025-05-19"},
+	}}
+	for by, want := range map[string][]string{"site": {"field A", "beach"}, "date": {"2025-04-03", "2025-05-19"}, "month": {"2025-04", "2025-05"}} {
+		got, err := GroupsOf(log, by)
+		if err != nil || !slices.Equal(got, want) {
+			t.Errorf("%s: %v, %v; want %v", by, got, err, want)
+		}
+	}
+	if g, err := GroupsOf(log, ""); g != nil || err != nil {
+		t.Errorf("no grouping: %v, %v", g, err)
+	}
+	if _, err := GroupsOf(log, "week"); !errors.Is(err, ErrGroupBy) {
+		t.Errorf("week: %v, want ErrGroupBy", err)
+	}
+	log.Digs[1].Site = ""
+	var pe *features.ParseError
+	if _, err := GroupsOf(log, "site"); !errors.As(err, &pe) || pe.Line != 3 || pe.Column != "site" || !errors.Is(err, features.ErrMissingValue) {
+		t.Errorf("missing site: %v, want a ParseError at line 3, column site", err)
 	}
 }

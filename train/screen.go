@@ -405,3 +405,19 @@ func (s *Screen) Describe() string {
 
 // HazardNames lists hazards as a person writes a list.
 func HazardNames(h []string) string { return features.ListAnd(h) }
+
+// ScreenTrees is how many trees TrainScreen grows on log, for a progress
+// display: o.Trees (default 100) for the screen by phase and amplitude,
+// and as many again for the screen with depth when every dig has a depth.
+func ScreenTrees(log *features.Log, o ScreenOptions) int {
+	n := o.Trees
+	if n <= 0 {
+		n = 100
+	}
+	for i := range log.Digs {
+		if !(log.Digs[i].DepthCM >= 0) {
+			return n
+		}
+	}
+	return 2 * n
+}

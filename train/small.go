@@ -3,8 +3,12 @@ package train
 import (
 	"errors"
 	"fmt"
+	"math"
 	"slices"
+	"strconv"
 	"strings"
+
+	"github.com/spade-detect/spade/features"
 )
 
 // SmallHistory is the size below which a history is called small: with
@@ -38,4 +42,33 @@ func HistoryNotes(digs int, classCounts map[string]int) []string {
 		notes = append(notes, fmt.Sprintf("classes with fewer than %d digs, which the model barely knows: %s", FewDigs, strings.Join(few, ", ")))
 	}
 	return notes
+}
+
+// Notes are what the user must know of the history a model learnt: its
+// size, its thin classes (HistoryNotes), and labels that look like one
+// thing spelt two ways (features.LabelNotes).
+func Notes(b *Bundle, log *features.Log) []string {
+	return append(HistoryNotes(b.Summary.Digs, b.Summary.ClassCounts), features.LabelNotes(log.Digs)...)
+}
+
+// ParseMaxSamples reads a bootstrap size for a history of n digs (train
+// --max-samples): a count, or a fraction (a number with a point) of n,
+// rounded, at least one, as scikit-learn's max_samples; 0 for all of them.
+func ParseMaxSamples(s string, n int) (int, error) {
+	if s == "" {
+		return 0, nil
+	}
+	bad := fmt.Errorf("want a count of digs (such as 50000) or a fraction of the history above 0 and at most 1 (such as 0.2); got %q", s)
+	if strings.ContainsAny(s, ".eE") {
+		f, err := strconv.ParseFloat(s, 64)
+		if err != nil || !(f > 0 && f <= 1) {
+			return 0, bad
+		}
+		return max(1, int(math.Round(f*float64(n)))), nil
+	}
+	m, err := strconv.Atoi(s)
+	if err != nil || m < 1 {
+		return 0, bad
+	}
+	return m, nil
 }

@@ -154,3 +154,18 @@ func TestBaselineOnlyIsTheFullLogsBaseline(t *testing.T) {
 		t.Errorf("warnings %q lack the display-ID-only note", b.Warnings)
 	}
 }
+
+func TestParseMaxSamples(t *testing.T) {
+	// A count, or a fraction rounded as scikit-learn rounds max_samples
+	// (max(round(n·f), 1)); anything else an error saying what it wants.
+	for s, want := range map[string]int{"": 0, "50000": 50000, "0.2": 200, "1.0": 1000, "1e-9": 1, "0.0005": 1} {
+		if got, err := ParseMaxSamples(s, 1000); err != nil || got != want {
+			t.Errorf("%q: %d, %v; want %d", s, got, err, want)
+		}
+	}
+	for _, s := range []string{"0", "-3", "1.5", "0.0", "abc", "20%"} {
+		if _, err := ParseMaxSamples(s, 1000); err == nil || !strings.Contains(err.Error(), "fraction of the history") {
+			t.Errorf("%q: %v", s, err)
+		}
+	}
+}

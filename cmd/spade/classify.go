@@ -8,10 +8,9 @@ import (
 	"io"
 	"runtime/debug"
 
-	"github.com/spade-detect/spade/internal/textui"
-
 	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/features"
+	"github.com/spade-detect/spade/internal/textui"
 	"github.com/spade-detect/spade/train"
 	"github.com/spf13/cobra"
 	"github.com/spf13/pflag"

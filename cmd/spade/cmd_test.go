@@ -201,23 +201,14 @@ func TestFileFlagsCompleteToFiles(t *testing.T) {
 }
 
 func TestMaxSamplesFlag(t *testing.T) {
-	// A count, or a fraction rounded as scikit-learn rounds max_samples
-	// (max(round(n·f), 1)); anything else is a usage error naming the flag.
-	for s, want := range map[string]int{"": 0, "50000": 50000, "0.2": 200, "1.0": 1000, "1e-9": 1, "0.0005": 1} {
-		if got, err := parseMaxSamples(s, 1000); err != nil || got != want {
-			t.Errorf("%q: %d, %v; want %d", s, got, err, want)
-		}
-	}
-	for _, s := range []string{"0", "-3", "1.5", "0.0", "abc", "20%"} {
-		if _, err := parseMaxSamples(s, 1000); err == nil || !strings.Contains(err.Error(), "--max-samples") {
-			t.Errorf("%q: %v", s, err)
-		}
-	}
 	// Through the command: the model records its bootstrap size.
 	dir := t.TempDir()
 	log := filepath.Join(dir, "h.csv")
 	if _, _, code := spade(t, "", "simulate", "--n", "300", "--seed", "4", "-o", log); code != 0 {
 		t.Fatal("simulate failed")
+	}
+	if _, stderr, code := spade(t, "", "train", log, "-o", filepath.Join(dir, "bad.spade"), "--max-samples", "20%"); code != exitUsage || !strings.Contains(stderr, "--max-samples") {
+		t.Errorf("--max-samples 20%%: exit %d, %s", code, stderr)
 	}
 	model := filepath.Join(dir, "m.spade")
 	if _, stderr, code := spade(t, "", "train", log, "-o", model, "--trees", "5", "--no-screen", "--max-samples", "0.5", "-q"); code != 0 {

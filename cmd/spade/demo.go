@@ -3,20 +3,18 @@ package main
 import (
 	"bytes"
 	"context"
-	"encoding/csv"
 	"fmt"
 	"io"
 	"os"
 	"path/filepath"
 	"strings"
 
-	"github.com/spade-detect/spade/internal/textui"
-
 	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/classify/overlap"
 	"github.com/spade-detect/spade/classify/plots"
 	"github.com/spade-detect/spade/datasets"
 	"github.com/spade-detect/spade/features"
+	"github.com/spade-detect/spade/internal/textui"
 	"github.com/spade-detect/spade/train"
 	"github.com/spf13/cobra"
 	"github.com/spf13/pflag"
@@ -116,7 +114,7 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 	if err != nil {
 		return err
 	}
-	fmt.Fprint(w, textui.Wrap(hazardStatus(bundle).Text+" The readings below have no depth, so the screen judges them by phase and amplitude and says at most \"cannot be ruled out\"; the history's own ordnance digs give the \"likely\" tier.", 78, ""))
+	fmt.Fprint(w, textui.Wrap(classify.HazardStatusOf(bundle).Text+" The readings below have no depth, so the screen judges them by phase and amplitude and says at most \"cannot be ruled out\"; the history's own ordnance digs give the \"likely\" tier.", 78, ""))
 	fmt.Fprintln(w)
 	modelPath := filepath.Join(opts.dir, "demo.spade")
 	if err := bundle.SaveContext(ctx, modelPath); err != nil {
@@ -126,7 +124,7 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 	if err != nil {
 		return err
 	}
-	notes := readingNotes(datasets.DemoReadings)
+	notes := datasets.DemoReadingNotes()
 	c := classify.New(bundle, vals)
 	for i := range readings.Digs {
 		r, err := c.Classify(&readings.Digs[i])
@@ -175,32 +173,4 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 	fmt.Fprintf(w, "it to the authorities. Permission, local law and heritage-reporting rules come\n")
 	fmt.Fprintf(w, "first. A probability is never a guarantee.\n")
 	return nil
-}
-
-// readingNotes maps dig id to the demo readings' note column (kept out of
-// the model, read here only to say what each reading really was).
-func readingNotes(data []byte) map[string]string {
-	r := csv.NewReader(bytes.NewReader(data))
-	r.Comment = '#'
-	rows, err := r.ReadAll()
-	notes := map[string]string{}
-	if err != nil || len(rows) == 0 {
-		return notes
-	}
-	dig, note := -1, -1
-	for i, h := range rows[0] {
-		switch h {
-		case "dig":
-			dig = i
-		case "note":
-			note = i
-		}
-	}
-	if dig < 0 || note < 0 {
-		return notes
-	}
-	for _, row := range rows[1:] {
-		notes[row[dig]] = row[note]
-	}
-	return notes
 }

@@ -4,7 +4,6 @@ import (
 	"context"
 	"encoding/json"
 	"errors"
-	"fmt"
 	"io"
 	"sync"
 
@@ -96,8 +95,10 @@ func runEvaluate(ctx context.Context, g *globalOptions, opts evaluateOptions, ar
 	if err := opts.values.check(vals, ds.Classes, kind); err != nil {
 		return err
 	}
-	groups, err := groupsOf(log, opts.group)
-	if err != nil {
+	groups, err := train.GroupsOf(log, opts.group)
+	if errors.Is(err, train.ErrGroupBy) {
+		return usagef("--group: %w", err)
+	} else if err != nil {
 		return err
 	}
 	ev, err := evaluateDataset(ctx, g, ds, opts.folds, opts.trees, opts.seed, vals, opts.format.json(), func(eo *train.EvalOptions) {
@@ -148,37 +149,6 @@ func evaluateScreen(ctx context.Context, g *globalOptions, log *features.Log, sp
 		return nil, nil
 	}
 	return ev, err
-}
-
-// groupsOf is each dig's group for --group: its site, date, or month.
-func groupsOf(log *features.Log, by string) ([]string, error) {
-	if by == "" {
-		return nil, nil
-	}
-	groups := make([]string, len(log.Digs))
-	for i := range log.Digs {
-		d := &log.Digs[i]
-		var g string
-		switch by {
-		case "site":
-			g = d.Site
-		case "date":
-			g = d.Date
-		case "month":
-			g = d.Date[:min(7, len(d.Date))]
-		default:
-			return nil, usagef("--group: want site, date or month, got %q", by)
-		}
-		if g == "" {
-			column := "date"
-			if by == "site" {
-				column = "site"
-			}
-			return nil, &features.ParseError{File: log.Name, Line: d.Line, Column: column, Err: fmt.Errorf("%w: --group %s needs a %s on every row", features.ErrMissingValue, by, column)}
-		}
-		groups[i] = g
-	}
-	return groups, nil
 }
 
 // specNotes says once what the log's feature spec leaves out.

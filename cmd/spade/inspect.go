@@ -7,8 +7,8 @@ import (
 	"sort"
 	"strings"
 
+	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/internal/textui"
-
 	"github.com/spade-detect/spade/train"
 	"github.com/spf13/cobra"
 	"github.com/spf13/pflag"
@@ -47,10 +47,10 @@ func runInspect(_ context.Context, g *globalOptions, opts inspectOptions, args [
 	if opts.format.json() {
 		enc := json.NewEncoder(w)
 		enc.SetIndent("", "  ")
-		return enc.Encode(map[string]any{"format": b.Format, "spec": b.Spec, "label": b.Label, "classes": b.Classes, "summary": s, "hazard_check": hazardStatus(b)})
+		return enc.Encode(map[string]any{"format": b.Format, "spec": b.Spec, "label": b.Label, "classes": b.Classes, "summary": s, "hazard_check": classify.HazardStatusOf(b)})
 	}
 	fmt.Fprintf(w, "model %s (format %d)\n", args[0], b.Format)
-	fmt.Fprint(w, textui.Wrap(hazardStatus(b).Text, 78, "  "))
+	fmt.Fprint(w, textui.Wrap(classify.HazardStatusOf(b).Text, 78, "  "))
 	switch {
 	case s.Created != "":
 		fmt.Fprintf(w, "  made by spade %s on %s, seed %d\n", s.SpadeVersion, s.Created, s.Seed)

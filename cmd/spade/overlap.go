@@ -10,12 +10,11 @@ import (
 	"strconv"
 	"strings"
 
-	"github.com/spade-detect/spade/internal/textui"
-
 	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/classify/overlap"
 	"github.com/spade-detect/spade/classify/plots"
 	"github.com/spade-detect/spade/features"
+	"github.com/spade-detect/spade/internal/textui"
 	"github.com/spade-detect/spade/train"
 	"github.com/spf13/cobra"
 	"github.com/spf13/pflag"

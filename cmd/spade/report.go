@@ -7,7 +7,6 @@ import (
 	"strings"
 
 	"github.com/spade-detect/spade/internal/textui"
-
 	"github.com/spade-detect/spade/train"
 )
 

@@ -12,10 +12,9 @@ import (
 	"strings"
 	"syscall"
 
-	"github.com/spade-detect/spade/internal/textui"
-
 	"github.com/spade-detect/spade/datasets"
 	"github.com/spade-detect/spade/features"
+	"github.com/spade-detect/spade/internal/textui"
 	"github.com/spf13/cobra"
 	"github.com/spf13/pflag"
 )

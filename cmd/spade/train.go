@@ -5,14 +5,10 @@ import (
 	"context"
 	"encoding/json"
 	"fmt"
-	"math"
-	"strconv"
-	"strings"
-
-	"github.com/spade-detect/spade/internal/textui"
 
 	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/features"
+	"github.com/spade-detect/spade/internal/textui"
 	"github.com/spade-detect/spade/train"
 	"github.com/spf13/cobra"
 	"github.com/spf13/pflag"
@@ -88,9 +84,9 @@ func runTrain(ctx context.Context, g *globalOptions, opts trainOptions, args []s
 	if err != nil {
 		return err
 	}
-	samples, err := parseMaxSamples(opts.samples, len(log.Digs))
+	samples, err := train.ParseMaxSamples(opts.samples, len(log.Digs))
 	if err != nil {
-		return err
+		return usagef("--max-samples: %w", err)
 	}
 	spec := features.NewSpec(log.Freqs, log.HasDisplayID)
 	g.specNotes(spec)
@@ -123,13 +119,13 @@ func runTrain(ctx context.Context, g *globalOptions, opts trainOptions, args []s
 		enc := json.NewEncoder(g.stdout)
 		enc.SetIndent("", "  ")
 		return enc.Encode(map[string]any{"model": opts.output, "summary": bundle.Summary, "classes": bundle.Classes, "freqs": spec.Freqs,
-			"hazard_check": hazardStatus(bundle), "warnings": trainNotes(bundle, log)})
+			"hazard_check": classify.HazardStatusOf(bundle), "warnings": train.Notes(bundle, log)})
 	}
 	s := bundle.Summary
 	fmt.Fprintf(g.stdout, "Trained on %d digs, %d classes (%s), %d trees; wrote %s\n", s.Digs, len(bundle.Classes), kind, s.Trees, opts.output)
 	fmt.Fprintf(g.stdout, "Out-of-bag: accuracy %.3f, balanced accuracy %.3f, log-loss %.3f\n", s.OutOfBag.Accuracy, s.OutOfBag.BalancedAccuracy, s.OutOfBag.LogLoss)
-	fmt.Fprint(g.stdout, textui.Wrap(hazardStatus(bundle).Text, 78, ""))
-	for _, n := range trainNotes(bundle, log) {
+	fmt.Fprint(g.stdout, textui.Wrap(classify.HazardStatusOf(bundle).Text, 78, ""))
+	for _, n := range train.Notes(bundle, log) {
 		fmt.Fprint(g.stdout, textui.Wrap("note: "+n+".", 78, ""))
 	}
 	fmt.Fprintln(g.stdout, "For the full report next to the single-number baseline: spade evaluate LOG")
@@ -141,60 +137,5 @@ func screenTrees(off bool, log *features.Log) int {
 	if off {
 		return 0
 	}
-	for i := range log.Digs {
-		if !(log.Digs[i].DepthCM >= 0) {
-			return 100
-		}
-	}
-	return 200
-}
-
-// hazardCheckStatus is whether a model can warn of ordnance, for train,
-// inspect and evaluate, in every format.
-type hazardCheckStatus struct {
-	Available bool          `json:"available"`
-	Screen    *train.Screen `json:"screen,omitempty"`
-	Text      string        `json:"text"`
-}
-
-func hazardStatus(b *train.Bundle) hazardCheckStatus {
-	if b.Screen != nil {
-		return hazardCheckStatus{Available: true, Screen: b.Screen, Text: b.Screen.Describe() + "."}
-	}
-	defaults := classify.DefaultValues()
-	for _, c := range b.Classes {
-		if defaults.IsHazard(c) {
-			return hazardCheckStatus{Available: true, Text: "ordnance screen off: the hazard check rests on your history's own hazardous classes alone."}
-		}
-	}
-	return hazardCheckStatus{Text: classify.UnavailableNote(b, defaults) + "."}
-}
-
-// trainNotes are what the user must know of the history a model learnt:
-// its size, its thin classes, and labels that look like one thing spelt
-// two ways.
-func trainNotes(b *train.Bundle, log *features.Log) []string {
-	return append(train.HistoryNotes(b.Summary.Digs, b.Summary.ClassCounts), features.LabelNotes(log.Digs)...)
-}
-
-// parseMaxSamples reads --max-samples for a log of n digs: a count, or a
-// fraction (a number with a point) of n, rounded, at least one, as
-// scikit-learn's max_samples; 0 for all of them.
-func parseMaxSamples(s string, n int) (int, error) {
-	if s == "" {
-		return 0, nil
-	}
-	bad := usagef("--max-samples takes a count of digs (such as 50000) or a fraction of the history above 0 and at most 1 (such as 0.2); got %q", s)
-	if strings.ContainsAny(s, ".eE") {
-		f, err := strconv.ParseFloat(s, 64)
-		if err != nil || !(f > 0 && f <= 1) {
-			return 0, bad
-		}
-		return max(1, int(math.Round(f*float64(n)))), nil
-	}
-	m, err := strconv.Atoi(s)
-	if err != nil || m < 1 {
-		return 0, bad
-	}
-	return m, nil
+	return train.ScreenTrees(log, train.ScreenOptions{})
 }
