@@ -76,7 +76,7 @@ func Stream(ctx context.Context, c *Classifier, next func() (features.Dig, error
 				if errors.As(errs[i], &pe) {
 					return errs[i]
 				}
-				return &features.ParseError{File: name, Line: batch[i].Line, Err: errs[i]}
+				return features.DigError(name, &batch[i], errs[i])
 			}
 			if err := emit(results[i]); err != nil {
 				return err

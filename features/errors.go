@@ -62,3 +62,13 @@ func PathCause(err error) error {
 	}
 	return err
 }
+
+// DigError places an error about one dig of a file at the dig's line, as
+// a *ParseError (an error that is one already is returned as it is).
+func DigError(file string, d *Dig, err error) error {
+	var pe *ParseError
+	if errors.As(err, &pe) {
+		return err
+	}
+	return &ParseError{File: file, Line: d.Line, Err: err}
+}

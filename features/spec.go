@@ -32,6 +32,10 @@ const (
 	NameDisplayID       = "display_id"
 )
 
+// SpecOf is the spec of a log: its frequencies, and its display ID when
+// the log has that column.
+func SpecOf(log *Log) *FeatureSpec { return NewSpec(log.Freqs, log.HasDisplayID) }
+
 // NewSpec builds the spec for a log's frequencies (ascending, distinct).
 // The lowest frequency is the amplitude reference.
 func NewSpec(freqs []int, displayID bool) *FeatureSpec {

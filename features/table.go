@@ -21,7 +21,7 @@ func WriteFeatureTable(w io.Writer, log *Log, spec *FeatureSpec) error {
 		d := &log.Digs[i]
 		var err error
 		if v, _, err = spec.Extract(d, v); err != nil {
-			return &ParseError{File: log.Name, Line: d.Line, Err: err}
+			return DigError(log.Name, d, err)
 		}
 		rec[0], rec[1], rec[2] = d.ID, d.Material, d.Shape
 		for j, x := range v {

@@ -68,7 +68,7 @@ func FromLog(log *features.Log, spec *features.FeatureSpec, kind features.Label)
 		}
 		v, _, err := spec.Extract(d, flat[i*spec.Len():(i+1)*spec.Len()])
 		if err != nil {
-			return nil, &features.ParseError{File: log.Name, Line: d.Line, Err: err}
+			return nil, features.DigError(log.Name, d, err)
 		}
 		for f, x := range v {
 			if math.IsNaN(x) || math.IsInf(x, 0) {
@@ -96,7 +96,7 @@ func TableOf(log *features.Log, kind features.Label) (*features.FeatureSpec, *Da
 		ds, err := FromDisplayIDs(log, kind)
 		return nil, ds, err
 	}
-	spec := features.NewSpec(log.Freqs, log.HasDisplayID)
+	spec := features.SpecOf(log)
 	ds, err := FromLog(log, spec, kind)
 	return spec, ds, err
 }

@@ -45,7 +45,7 @@ func (b *Bundle) HeldOut(log *features.Log, ds *Dataset) ([][]float64, []string,
 	for i := range log.Digs {
 		x, _, err = b.Spec.Extract(&log.Digs[i], x)
 		if err != nil {
-			return nil, nil, &features.ParseError{File: log.Name, Line: log.Digs[i].Line, Err: err}
+			return nil, nil, features.DigError(log.Name, &log.Digs[i], err)
 		}
 		var p []float64
 		if j, ok := training[log.Digs[i].ID]; ok {

@@ -197,7 +197,7 @@ func TrainScreen(ctx context.Context, log *features.Log, spec *features.FeatureS
 			s.OwnHazardDigs++
 		}
 		if err := add(d, class); err != nil {
-			return nil, &features.ParseError{File: log.Name, Line: d.Line, Err: err}
+			return nil, features.DigError(log.Name, d, err)
 		}
 	}
 	for i := range lib {

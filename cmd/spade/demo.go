@@ -68,7 +68,7 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 	if err := os.MkdirAll(opts.dir, 0o755); err != nil {
 		return fmt.Errorf("demo: %w", err)
 	}
-	spec := features.NewSpec(log.Freqs, log.HasDisplayID)
+	spec := features.SpecOf(log)
 	fmt.Fprintf(w, "spade demo: the main job on an invented dig history\n\n")
 	fmt.Fprint(w, textui.Wrap(fmt.Sprintf("History: %d digs from two invented sites, Harrowmere Farm (an iron-rich field) and Sandle Reach (a tidal beach), read at %s, each with what came out of the ground. Values: datasets/demo/values.toml.",
 		len(log.Digs), features.HzList(log.Freqs)), 78, ""))

@@ -47,7 +47,7 @@ func runFeatures(_ context.Context, g *globalOptions, opts featuresOptions, args
 	if err != nil {
 		return err
 	}
-	spec := features.NewSpec(log.Freqs, log.HasDisplayID)
+	spec := features.SpecOf(log)
 	g.specNotes(spec)
 	return g.writeOutput(opts.output, func(w io.Writer) error { return features.WriteFeatureTable(w, log, spec) })
 }

@@ -88,7 +88,7 @@ func runTrain(ctx context.Context, g *globalOptions, opts trainOptions, args []s
 	if err != nil {
 		return usagef("--max-samples: %w", err)
 	}
-	spec := features.NewSpec(log.Freqs, log.HasDisplayID)
+	spec := features.SpecOf(log)
 	g.specNotes(spec)
 	bar := g.progress(opts.trees+screenTrees(opts.noScreen, log), "growing trees", opts.format.json())
 	step := func(int) { bar.Step(1) }
