@@ -10,6 +10,7 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/spade-detect/spade/datasets"
 	"github.com/spade-detect/spade/train"
 	"gonum.org/v1/gonum/floats/scalar"
 )
@@ -29,7 +30,7 @@ func TestResponseJSONSphereDCLimit(t *testing.T) {
 	if code != 0 {
 		t.Fatalf("exit %d", code)
 	}
-	var rows []responseRow
+	var rows []datasets.ResponseRow
 	if err := json.Unmarshal([]byte(out), &rows); err != nil {
 		t.Fatal(err)
 	}
@@ -42,7 +43,7 @@ func TestResponseCopperCoin(t *testing.T) {
 	// "What would a 20 mm copper coin read?": a good conductor, phase above
 	// 160° at 5 kHz and rising (common practice, no source).
 	out, _, code := spade(t, "", "response", "--shape", "disc", "--material", "copper", "--diameter-mm", "20", "--format", "json")
-	var rows []responseRow
+	var rows []datasets.ResponseRow
 	if code != 0 || json.Unmarshal([]byte(out), &rows) != nil {
 		t.Fatalf("exit %d: %s", code, out)
 	}

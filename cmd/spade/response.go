@@ -5,9 +5,6 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
-	"math"
-	"sort"
-	"strings"
 	"text/tabwriter"
 
 	"github.com/spade-detect/spade/datasets"
@@ -39,15 +36,6 @@ func (o *responseOptions) AddFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.format, "format", "table", "table or json")
 }
 
-func materialNames() string {
-	var names []string
-	for m := range datasets.Conductivity {
-		names = append(names, m)
-	}
-	sort.Strings(names)
-	return strings.Join(names, ", ")
-}
-
 func newResponseCommand(g *globalOptions) *cobra.Command {
 	var opts responseOptions
 	cmd := &cobra.Command{
@@ -62,7 +50,7 @@ atan2(r, x) in degrees (0 ferrite, 90 weak conductor, 180 perfect conductor),
 amp = hypot(x, r). For a sphere x - ir is Wait's normalised X (moment 2πa³·X);
 a ring's or disc's moment is divided by the same 2πa³, a = diameter/2.
 
-Materials: ` + materialNames() + ` (CRC Handbook at 20 °C; the alloys typical).`,
+Materials: ` + datasets.MaterialNames() + ` (CRC Handbook at 20 °C; the alloys typical).`,
 		Example: "  spade response --shape disc --material copper --diameter-mm 20 --thickness-mm 1.5\n" +
 			"  spade response --shape ring --material gold --diameter-mm 18 --wire-mm 2 --format json\n" +
 			"  spade response --shape sphere --sigma 1e7 --mur 100 --diameter-mm 8 --freqs 1k,15k",
@@ -73,14 +61,6 @@ Materials: ` + materialNames() + ` (CRC Handbook at 20 °C; the alloys typical).
 	return cmd
 }
 
-type responseRow struct {
-	Hz    int     `json:"hz"`
-	X     float64 `json:"x"`
-	R     float64 `json:"r"`
-	Phase float64 `json:"phase"`
-	Amp   float64 `json:"amp"`
-}
-
 func runResponse(_ context.Context, g *globalOptions, o responseOptions) error {
 	freqs, err := parseFreqList(o.freqs)
 	if err != nil {
@@ -89,53 +69,11 @@ func runResponse(_ context.Context, g *globalOptions, o responseOptions) error {
 	if len(freqs) == 0 {
 		return usagef("--freqs: give at least one frequency")
 	}
-	sigma, mur := o.sigma, o.mur
-	if o.material != "" {
-		s, ok := datasets.Conductivity[strings.ToLower(o.material)]
-		if !ok {
-			return usagef("--material: unknown %q (have %s)", o.material, materialNames())
-		}
-		if sigma == 0 {
-			sigma = s
-		}
-		if mur == 0 {
-			mur = datasets.RelativePermeability[strings.ToLower(o.material)]
-		}
-	}
-	if mur == 0 {
-		mur = 1
-	}
-	if sigma < 0 || mur < 1 || o.diameterMM <= 0 || o.wireMM <= 0 || o.thickMM <= 0 {
-		return usagef("need --sigma >= 0, --mur >= 1 and positive sizes")
-	}
-	if sigma == 0 && mur == 1 {
-		return usagef("a non-conducting, non-magnetic object has no response: give --material, --sigma or --mur")
-	}
-	if sigma == 0 && o.shape != "sphere" {
-		return usagef("a %s needs a conductivity: --material or --sigma", o.shape)
-	}
-	a := o.diameterMM / 2000
-	var moment func(w float64) complex128
-	switch o.shape {
-	case "sphere":
-		moment = func(w float64) complex128 { return datasets.SphereX(w, a, sigma, mur) }
-	case "ring":
-		if o.wireMM >= o.diameterMM {
-			return usagef("--wire-mm must be smaller than --diameter-mm")
-		}
-		p := datasets.RingPole(a, o.wireMM/2000, sigma)
-		moment = func(w float64) complex128 { return p.Eval(w) / complex(2*math.Pi*a*a*a, 0) }
-	case "disc":
-		ps := datasets.DiscPoles(a, o.thickMM/1000, sigma)
-		moment = func(w float64) complex128 { return datasets.PolesMoment(ps, w) / complex(2*math.Pi*a*a*a, 0) }
-	default:
-		return usagef("--shape: want sphere, ring or disc, got %q", o.shape)
-	}
-	rows := make([]responseRow, len(freqs))
-	for i, hz := range freqs {
-		z := moment(2 * math.Pi * float64(hz))
-		x, r := real(z), -imag(z)
-		rows[i] = responseRow{Hz: hz, X: x, R: r, Phase: math.Atan2(r, x) * 180 / math.Pi, Amp: math.Hypot(x, r)}
+	obj := datasets.Object{Shape: o.shape, Material: o.material, Sigma: o.sigma, MuR: o.mur,
+		Diameter: o.diameterMM / 1000, Wire: o.wireMM / 1000, Thickness: o.thickMM / 1000}
+	rows, err := obj.Response(freqs)
+	if err != nil {
+		return usageError{err}
 	}
 	return g.writeOutput("-", func(w io.Writer) error {
 		switch o.format {
