@@ -8,6 +8,8 @@ import (
 	"io"
 	"runtime/debug"
 
+	"github.com/spade-detect/spade/internal/cli"
+
 	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/features"
 	"github.com/spade-detect/spade/internal/textui"
@@ -77,7 +79,7 @@ written, in order, then the run stops with the row's error and exit 1.`,
 }
 
 func runClassify(ctx context.Context, g *globalOptions, opts classifyOptions, args []string) error {
-	if err := checkOutputs(map[string]string{"-o": opts.output}, append([]string{opts.model, opts.values.file}, args...)...); err != nil {
+	if err := cli.CheckOutputs(map[string]string{"-o": opts.output}, append([]string{opts.model, opts.values.file}, args...)...); err != nil {
 		return err
 	}
 	if err := opts.format.check(); err != nil {
@@ -144,7 +146,7 @@ func runClassify(ctx context.Context, g *globalOptions, opts classifyOptions, ar
 			return cerr
 		}
 		if err != nil {
-			return keepOutput{fmt.Errorf("%w (the results of the %s before it are written)", err, features.Plural(n, "reading"))}
+			return cli.KeepOutput{Err: fmt.Errorf("%w (the results of the %s before it are written)", err, features.Plural(n, "reading"))}
 		}
 		return nil
 	})
@@ -155,7 +157,7 @@ func readingSource(g *globalOptions, opts classifyOptions, args []string) (func(
 	if opts.reading != "" {
 		d, err := classify.ParseInline(opts.reading)
 		if err != nil {
-			return nil, "", nil, usageError{err}
+			return nil, "", nil, usageError{Err: err}
 		}
 		done := false
 		return func() (features.Dig, error) {

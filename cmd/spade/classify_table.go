@@ -7,6 +7,8 @@ import (
 	"slices"
 	"strings"
 
+	"github.com/spade-detect/spade/internal/cli"
+
 	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/internal/textui"
 )
@@ -32,7 +34,9 @@ func (t *tableWriter) Write(r *classify.Result) error {
 }
 
 // Stop says in the table what stopped the run.
-func (t *tableWriter) Stop(err error) { fmt.Fprint(t.w, textui.Wrap("stopped: "+oneLine(err), 78, "")) }
+func (t *tableWriter) Stop(err error) {
+	fmt.Fprint(t.w, textui.Wrap("stopped: "+cli.OneLine(err), 78, ""))
+}
 
 func (t *tableWriter) Close() error { return t.w.Flush() }
 

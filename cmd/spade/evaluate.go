@@ -7,6 +7,8 @@ import (
 	"io"
 	"sync"
 
+	"github.com/spade-detect/spade/internal/cli"
+
 	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/datasets"
 	"github.com/spade-detect/spade/features"
@@ -64,7 +66,7 @@ not a promise about the next one.`,
 }
 
 func runEvaluate(ctx context.Context, g *globalOptions, opts evaluateOptions, args []string) error {
-	if err := checkOutputs(map[string]string{"-o": opts.output}, args[0], opts.values.file); err != nil {
+	if err := cli.CheckOutputs(map[string]string{"-o": opts.output}, args[0], opts.values.file); err != nil {
 		return err
 	}
 	if err := opts.format.check(); err != nil {

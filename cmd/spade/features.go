@@ -4,6 +4,8 @@ import (
 	"context"
 	"io"
 
+	"github.com/spade-detect/spade/internal/cli"
+
 	"github.com/spade-detect/spade/features"
 	"github.com/spf13/cobra"
 	"github.com/spf13/pflag"
@@ -39,7 +41,7 @@ data in a spreadsheet or to compare against another learner.`,
 
 func runFeatures(_ context.Context, g *globalOptions, opts featuresOptions, args []string) error {
 	if len(args) > 0 {
-		if err := checkOutputs(map[string]string{"-o": opts.output}, args[0]); err != nil {
+		if err := cli.CheckOutputs(map[string]string{"-o": opts.output}, args[0]); err != nil {
 			return err
 		}
 	}

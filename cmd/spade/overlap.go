@@ -10,6 +10,8 @@ import (
 	"strconv"
 	"strings"
 
+	"github.com/spade-detect/spade/internal/cli"
+
 	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/classify/overlap"
 	"github.com/spade-detect/spade/classify/plots"
@@ -75,7 +77,7 @@ mean entropy before and after, and the trash skippable there while keeping
 }
 
 func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args []string) error {
-	if err := checkOutputs(map[string]string{"-o": opts.output, "--plot": opts.plot}, args[0], opts.model, opts.values.file); err != nil {
+	if err := cli.CheckOutputs(map[string]string{"-o": opts.output, "--plot": opts.plot}, args[0], opts.model, opts.values.file); err != nil {
 		return err
 	}
 	if err := opts.format.check(); err != nil {
@@ -83,7 +85,7 @@ func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args
 	}
 	if opts.plot != "" {
 		if _, err := plots.FormatOf(opts.plot); err != nil {
-			return usageError{err}
+			return usageError{Err: err}
 		}
 	}
 	if opts.trees < 1 {

@@ -73,7 +73,7 @@ func runResponse(_ context.Context, g *globalOptions, o responseOptions) error {
 		Diameter: o.diameterMM / 1000, Wire: o.wireMM / 1000, Thickness: o.thickMM / 1000}
 	rows, err := obj.Response(freqs)
 	if err != nil {
-		return usageError{err}
+		return usageError{Err: err}
 	}
 	return g.writeOutput("-", func(w io.Writer) error {
 		switch o.format {

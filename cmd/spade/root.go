@@ -5,18 +5,16 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"math"
 	"os"
 	"runtime/debug"
-	"strconv"
 	"strings"
 	"syscall"
 
 	"github.com/spade-detect/spade/datasets"
 	"github.com/spade-detect/spade/features"
+	"github.com/spade-detect/spade/internal/cli"
 	"github.com/spade-detect/spade/internal/textui"
 	"github.com/spf13/cobra"
-	"github.com/spf13/pflag"
 )
 
 // version is the release; commit is set at build time with
@@ -36,14 +34,6 @@ const (
 	// stopped by Ctrl-C, so scripts tell "stopped" from "failed".
 	exitInterrupt = 130
 )
-
-// usageError marks a mistake in the command line.
-type usageError struct{ err error }
-
-func (u usageError) Error() string { return u.err.Error() }
-func (u usageError) Unwrap() error { return u.err }
-
-func usagef(format string, args ...any) error { return usageError{fmt.Errorf(format, args...)} }
 
 // globalOptions are the flags every command shares.
 type globalOptions struct {
@@ -74,6 +64,11 @@ func versionString() string {
 	return fmt.Sprintf("%s (commit %s)", version, c)
 }
 
+// usageError marks a mistake in the command line.
+type usageError = cli.UsageError
+
+func usagef(format string, args ...any) error { return cli.Usagef(format, args...) }
+
 const rootLong = `spade learns from your own dig history (every reading, with what actually came
 out of the ground) and gives, for a new multi-frequency reading, a probability
 per material and shape class instead of one number. It says whether a dig is
@@ -103,12 +98,12 @@ func newRootCommand(g *globalOptions) *cobra.Command {
 	root.SetVersionTemplate("spade {{.Version}}\n")
 	root.PersistentFlags().BoolVarP(&g.quiet, "quiet", "q", false, "no progress display and no notes on stderr")
 	root.PersistentFlags().BoolVarP(&g.verbose, "verbose", "v", false, "more detail on stderr")
-	root.SetFlagErrorFunc(func(cmd *cobra.Command, err error) error { return usageError{flagError(cmd, err)} })
+	root.SetFlagErrorFunc(func(cmd *cobra.Command, err error) error { return cli.FlagError(cmd, err) })
 	root.PersistentPreRunE = func(cmd *cobra.Command, _ []string) error {
 		if f := cmd.Flags().Lookup("date-format"); f != nil && f.Value.String() != features.DayFirst && f.Value.String() != features.MonthFirst {
 			return usagef("--date-format: want dmy or mdy, got %q", f.Value.String())
 		}
-		return finiteFloatFlags(cmd)
+		return cli.FiniteFloatFlags(cmd)
 	}
 	root.AddCommand(
 		newDemoCommand(g),
@@ -122,7 +117,7 @@ func newRootCommand(g *globalOptions) *cobra.Command {
 		newOverlapCommand(g),
 	)
 	for _, c := range root.Commands() {
-		c.Args = wrapArgs(c.Args)
+		c.Args = cli.ExplainArgs(c.Args)
 		registerValueCompletions(c)
 	}
 	return root
@@ -161,89 +156,6 @@ func registerValueCompletions(c *cobra.Command) {
 	}
 }
 
-// finiteFloatFlags refuses NaN and ±Inf in every float flag of every command
-// at once: pflag parses "nan", and a NaN --phase-offset would turn every
-// feature into NaN, a NaN threshold pass every comparison unnoticed.
-func finiteFloatFlags(cmd *cobra.Command) error {
-	var bad error
-	cmd.Flags().VisitAll(func(f *pflag.Flag) {
-		if f.Value.Type() != "float64" || bad != nil {
-			return
-		}
-		if v, err := strconv.ParseFloat(f.Value.String(), 64); err == nil && (math.IsNaN(v) || math.IsInf(v, 0)) {
-			bad = usagef("--%s must be a finite number, got %s", f.Name, f.Value.String())
-		}
-	})
-	return bad
-}
-
-// wrapArgs turns cobra's argument-count errors ("accepts 1 arg(s), received
-// 0") into usage errors that say what the command takes and what it got.
-func wrapArgs(check cobra.PositionalArgs) cobra.PositionalArgs {
-	if check == nil {
-		return nil
-	}
-	return func(cmd *cobra.Command, args []string) error {
-		if err := check(cmd, args); err != nil {
-			got := "nothing"
-			switch len(args) {
-			case 0:
-			case 1:
-				got = fmt.Sprintf("%q", args[0])
-			default:
-				got = fmt.Sprintf("%d arguments (%s)", len(args), quotedList(args))
-			}
-			_, takes, _ := strings.Cut(cmd.Use, " ")
-			if takes == "" {
-				return usagef("%s takes no arguments; it was given %s", cmd.CommandPath(), got)
-			}
-			return usagef("%s takes %s; it was given %s", cmd.CommandPath(), takes, got)
-		}
-		return nil
-	}
-}
-
-// quotedList writes strings as a person lists them: "a", "b" and "c".
-func quotedList(items []string) string {
-	q := make([]string, len(items))
-	for i, s := range items {
-		q[i] = strconv.Quote(s)
-	}
-	return features.ListAnd(q)
-}
-
-// flagError rewrites pflag's parse errors ("invalid argument "x" for
-// "--trees" flag: strconv.ParseInt: parsing "x": invalid syntax") into what
-// the flag wants, and suggests the nearest flag for an unknown one.
-func flagError(cmd *cobra.Command, err error) error {
-	var invalid *pflag.InvalidValueError
-	if errors.As(err, &invalid) {
-		f := invalid.GetFlag()
-		want := map[string]string{
-			"int": "a whole number", "int64": "a whole number", "uint": "a whole number",
-			"float64": "a number", "bool": "true or false", "duration": "a duration like 30s",
-		}[f.Value.Type()]
-		if want == "" {
-			return err
-		}
-		return fmt.Errorf("--%s wants %s, got %q", f.Name, want, invalid.GetValue())
-	}
-	var missing *pflag.NotExistError
-	if errors.As(err, &missing) {
-		name := strings.TrimLeft(missing.GetSpecifiedName(), "-")
-		best, bestD := "", 3
-		cmd.Flags().VisitAll(func(f *pflag.Flag) {
-			if d := features.EditDistance(name, f.Name); d < bestD && !f.Hidden {
-				best, bestD = f.Name, d
-			}
-		})
-		if best != "" && len(name) > 1 {
-			return fmt.Errorf("%v (did you mean --%s?)", err, best)
-		}
-	}
-	return err
-}
-
 // run executes one command line and returns the exit code; main and the
 // tests both call it.
 func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.Writer) (code int) {
@@ -272,7 +184,7 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 		// Whoever read the output stopped reading (| head): nothing to say.
 		return exitOK
 	}
-	fmt.Fprintln(stderr, "spade: "+oneLine(err))
+	fmt.Fprintln(stderr, "spade: "+cli.OneLine(err))
 	var ue usageError
 	switch {
 	case errors.As(err, &ue) || strings.HasPrefix(err.Error(), "unknown command"):
@@ -288,16 +200,4 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 	default:
 		return exitError
 	}
-}
-
-// oneLine keeps an error message to its first line.
-func oneLine(err error) string {
-	s := err.Error()
-	if i := strings.IndexByte(s, '\n'); i >= 0 {
-		s = s[:i]
-	}
-	if errors.Is(err, context.Canceled) {
-		return "interrupted; nothing was written"
-	}
-	return s
 }

@@ -6,6 +6,8 @@ import (
 	"encoding/json"
 	"fmt"
 
+	"github.com/spade-detect/spade/internal/cli"
+
 	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/features"
 	"github.com/spade-detect/spade/internal/textui"
@@ -65,7 +67,7 @@ accuracy that the out-of-bag figures show.`,
 }
 
 func runTrain(ctx context.Context, g *globalOptions, opts trainOptions, args []string) error {
-	if err := checkOutputs(map[string]string{"-o": opts.output}, args[0]); err != nil {
+	if err := cli.CheckOutputs(map[string]string{"-o": opts.output}, args[0]); err != nil {
 		return err
 	}
 	if opts.output == "" {
