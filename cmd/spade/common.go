@@ -1,10 +1,14 @@
 package main
 
 import (
+	"encoding/json"
+	"io"
 	"strings"
 
 	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/features"
+	"github.com/spade-detect/spade/internal/cli"
+	"github.com/spade-detect/spade/train"
 	"github.com/spf13/pflag"
 )
 
@@ -89,4 +93,56 @@ func (v *valuesFlags) check(vals *classify.Values, classes []string, label featu
 		source = "--keep"
 	}
 	return vals.CheckNames(source, classes, label)
+}
+
+// history is what the reporting commands (evaluate, overlap) read first:
+// the labelled log, its table, and the user's values, checked against it.
+type history struct {
+	log  *features.Log
+	kind features.Label
+	spec *features.FeatureSpec // nil for a log of display IDs only
+	ds   *train.Dataset
+	vals *classify.Values // nil when neither --values nor --keep is given
+}
+
+// readHistory is the shared preamble of the reporting commands: the
+// format, the outputs against the inputs, the values file, and a log of
+// readings or of display IDs only, with what its spec leaves out noted.
+func (g *globalOptions) readHistory(in *labelledLogFlags, values *valuesFlags, format *formatFlag, outputs map[string]string, name string, inputs ...string) (*history, error) {
+	if err := cli.CheckOutputs(outputs, append([]string{name, values.file}, inputs...)...); err != nil {
+		return nil, err
+	}
+	if err := format.check(); err != nil {
+		return nil, err
+	}
+	h := &history{}
+	var err error
+	if h.vals, err = values.load(); err != nil {
+		return nil, err
+	}
+	in.displayIDOnly = true
+	if h.log, h.kind, err = in.read(g, name); err != nil {
+		return nil, err
+	}
+	if h.spec, h.ds, err = train.TableOf(h.log, h.kind); err != nil {
+		return nil, err
+	}
+	if h.spec != nil {
+		g.specNotes(h.spec)
+	}
+	return h, values.check(h.vals, h.ds.Classes, h.kind)
+}
+
+// specNotes says once what the log's feature spec leaves out.
+func (g *globalOptions) specNotes(spec *features.FeatureSpec) {
+	for _, n := range spec.Notes() {
+		g.note("note: %s", n)
+	}
+}
+
+// writeJSON writes v as indented JSON, the form of every --format json.
+func writeJSON(w io.Writer, v any) error {
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	return enc.Encode(v)
 }

@@ -2,12 +2,8 @@ package main
 
 import (
 	"context"
-	"encoding/json"
 	"errors"
 	"io"
-	"sync"
-
-	"github.com/spade-detect/spade/internal/cli"
 
 	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/datasets"
@@ -66,63 +62,40 @@ not a promise about the next one.`,
 }
 
 func runEvaluate(ctx context.Context, g *globalOptions, opts evaluateOptions, args []string) error {
-	if err := cli.CheckOutputs(map[string]string{"-o": opts.output}, args[0], opts.values.file); err != nil {
-		return err
-	}
-	if err := opts.format.check(); err != nil {
-		return err
-	}
 	if opts.folds < 2 {
 		return usagef("--folds must be at least 2")
 	}
 	if opts.trees < 1 {
 		return usagef("--trees must be at least 1, got %d", opts.trees)
 	}
-	vals, err := opts.values.load()
+	h, err := g.readHistory(&opts.in, &opts.values, &opts.format, map[string]string{"-o": opts.output}, args[0])
 	if err != nil {
 		return err
 	}
-	opts.in.displayIDOnly = true
-	log, kind, err := opts.in.read(g, args[0])
-	if err != nil {
-		return err
-	}
-	spec, ds, err := train.TableOf(log, kind)
-	if err != nil {
-		return err
-	}
-	if spec != nil {
-		g.specNotes(spec)
-	}
-	if err := opts.values.check(vals, ds.Classes, kind); err != nil {
-		return err
-	}
-	groups, err := train.GroupsOf(log, opts.group)
+	groups, err := train.GroupsOf(h.log, opts.group)
 	if errors.Is(err, train.ErrGroupBy) {
 		return usagef("--group: %w", err)
 	} else if err != nil {
 		return err
 	}
-	ev, err := evaluateDataset(ctx, g, ds, opts.folds, opts.trees, opts.seed, vals, opts.format.json(), func(eo *train.EvalOptions) {
-		eo.Groups, eo.LearningCurve, eo.BaselineOnly = groups, !opts.noCurve, log.DisplayIDOnly
+	ev, err := evaluateDataset(ctx, g, h.ds, opts.folds, opts.trees, opts.seed, h.vals, opts.format.json(), func(eo *train.EvalOptions) {
+		eo.Groups, eo.LearningCurve, eo.BaselineOnly = groups, !opts.noCurve, h.log.DisplayIDOnly
 	})
 	if err != nil {
 		return err
 	}
 	ev.GroupedBy = opts.group
-	ev.Warnings = append(ev.Warnings, features.LabelNotes(log.Digs)...)
-	if spec != nil {
-		if ev.Screen, err = evaluateScreen(ctx, g, log, spec, opts.seed, vals, opts.format.json()); err != nil {
+	ev.Warnings = append(ev.Warnings, features.LabelNotes(h.log.Digs)...)
+	if h.spec != nil {
+		if ev.Screen, err = evaluateScreen(ctx, g, h.log, h.spec, opts.seed, h.vals, opts.format.json()); err != nil {
 			return err
 		}
 	}
 	return g.writeOutput(opts.output, func(w io.Writer) error {
 		if opts.format.json() {
-			enc := json.NewEncoder(w)
-			enc.SetIndent("", "  ")
-			return enc.Encode(ev)
+			return writeJSON(w, ev)
 		}
-		writeEvaluation(w, ev, string(kind))
+		writeEvaluation(w, ev, string(h.kind))
 		if ev.Screen == nil && !ev.BaselineOnly {
 			writeScreenEvaluation(w, nil)
 		}
@@ -140,24 +113,12 @@ func evaluateScreen(ctx context.Context, g *globalOptions, log *features.Log, sp
 	}
 	groups := len(datasets.MunitionGroups()) + 1
 	bar := g.progress(groups*screenTrees(false, log), "testing the ordnance screen", quiet)
-	var mu sync.Mutex
-	ev, err := train.EvaluateScreen(ctx, log, spec, train.ScreenOptions{Seed: seed, Progress: func(int) {
-		mu.Lock()
-		defer mu.Unlock()
-		bar.Step(1)
-	}}, keeper)
+	ev, err := train.EvaluateScreen(ctx, log, spec, train.ScreenOptions{Seed: seed, Progress: func(int) { bar.Step(1) }}, keeper)
 	bar.Done()
 	if errors.Is(err, train.ErrNoScreen) {
 		return nil, nil
 	}
 	return ev, err
-}
-
-// specNotes says once what the log's feature spec leaves out.
-func (g *globalOptions) specNotes(spec *features.FeatureSpec) {
-	for _, n := range spec.Notes() {
-		g.note("note: %s", n)
-	}
 }
 
 // evaluateDataset cross-validates an extracted table, with a progress bar.
@@ -181,17 +142,8 @@ func evaluateDataset(ctx context.Context, g *globalOptions, ds *train.Dataset, f
 		rounds = 0
 	}
 	bar := g.progress(folds*trees*rounds, "cross-validating", quiet)
-	// Called from every tree-growing goroutine at once.
-	var mu sync.Mutex
-	last := 0
-	eo.Progress = func(done, _ int) {
-		mu.Lock()
-		defer mu.Unlock()
-		if done > last {
-			bar.Step(done - last)
-			last = done
-		}
-	}
+	// Called once a tree, from every tree-growing goroutine at once.
+	eo.Progress = func(int, int) { bar.Step(1) }
 	ev, err := train.CrossValidate(ctx, ds, eo)
 	bar.Done()
 	return ev, err
