@@ -106,14 +106,20 @@ type history struct {
 }
 
 // readHistory is the shared preamble of the reporting commands: the
-// format, the outputs against the inputs, the values file, and a log of
-// readings or of display IDs only, with what its spec leaves out noted.
-func (g *globalOptions) readHistory(in *labelledLogFlags, values *valuesFlags, format *formatFlag, outputs map[string]string, name string, inputs ...string) (*history, error) {
+// outputs against the inputs, the format, the command's own flag checks
+// (flags, when not nil), the values file, and a log of readings or of
+// display IDs only, with what its spec leaves out noted.
+func (g *globalOptions) readHistory(in *labelledLogFlags, values *valuesFlags, format *formatFlag, flags func() error, outputs map[string]string, name string, inputs ...string) (*history, error) {
 	if err := cli.CheckOutputs(outputs, append([]string{name, values.file}, inputs...)...); err != nil {
 		return nil, err
 	}
 	if err := format.check(); err != nil {
 		return nil, err
+	}
+	if flags != nil {
+		if err := flags(); err != nil {
+			return nil, err
+		}
 	}
 	h := &history{}
 	var err error

@@ -61,14 +61,19 @@ not a promise about the next one.`,
 	return cmd
 }
 
-func runEvaluate(ctx context.Context, g *globalOptions, opts evaluateOptions, args []string) error {
-	if opts.folds < 2 {
+// check refuses flags out of range before any reading.
+func (o *evaluateOptions) check() error {
+	if o.folds < 2 {
 		return usagef("--folds must be at least 2")
 	}
-	if opts.trees < 1 {
-		return usagef("--trees must be at least 1, got %d", opts.trees)
+	if o.trees < 1 {
+		return usagef("--trees must be at least 1, got %d", o.trees)
 	}
-	h, err := g.readHistory(&opts.in, &opts.values, &opts.format, map[string]string{"-o": opts.output}, args[0])
+	return nil
+}
+
+func runEvaluate(ctx context.Context, g *globalOptions, opts evaluateOptions, args []string) error {
+	h, err := g.readHistory(&opts.in, &opts.values, &opts.format, opts.check, map[string]string{"-o": opts.output}, args[0])
 	if err != nil {
 		return err
 	}

@@ -2,15 +2,12 @@ package main
 
 import (
 	"context"
-	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
 	"math"
 	"strconv"
 	"strings"
-
-	"github.com/spade-detect/spade/internal/cli"
 
 	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/classify/overlap"
@@ -76,42 +73,30 @@ mean entropy before and after, and the trash skippable there while keeping
 	return cmd
 }
 
-func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args []string) error {
-	if err := cli.CheckOutputs(map[string]string{"-o": opts.output, "--plot": opts.plot}, args[0], opts.model, opts.values.file); err != nil {
-		return err
-	}
-	if err := opts.format.check(); err != nil {
-		return err
-	}
-	if opts.plot != "" {
-		if _, err := plots.FormatOf(opts.plot); err != nil {
+// check refuses flags out of range before any reading.
+func (o *overlapOptions) check() error {
+	if o.plot != "" {
+		if _, err := plots.FormatOf(o.plot); err != nil {
 			return usageError{Err: err}
 		}
 	}
-	if opts.trees < 1 {
-		return usagef("--trees must be at least 1, got %d", opts.trees)
+	if o.trees < 1 {
+		return usagef("--trees must be at least 1, got %d", o.trees)
 	}
-	if opts.minTop <= 0 || opts.minTop > 1 || opts.maxEntropy <= 0 || opts.bin < 0 {
+	if o.minTop <= 0 || o.minTop > 1 || o.maxEntropy <= 0 || o.bin < 0 {
 		return usagef("need 0 < --min-top-share <= 1, --max-entropy > 0 and --bin >= 0")
 	}
-	vals, err := opts.values.load()
+	return nil
+}
+
+func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args []string) error {
+	h, err := g.readHistory(&opts.in, &opts.values, &opts.format, opts.check, map[string]string{"-o": opts.output, "--plot": opts.plot}, args[0], opts.model)
 	if err != nil {
 		return err
 	}
-	opts.in.displayIDOnly = true
-	log, kind, err := opts.in.read(g, args[0])
-	if err != nil {
-		return err
-	}
+	log, kind, ds, vals := h.log, h.kind, h.ds, h.vals
 	if log.DisplayIDOnly && opts.model != "" {
 		return usagef("--model: this log has display IDs only, and a model needs phase and amplitude readings; leave out --model")
-	}
-	spec, ds, err := train.TableOf(log, kind)
-	if err != nil {
-		return err
-	}
-	if err := opts.values.check(vals, ds.Classes, kind); err != nil {
-		return err
 	}
 	// The axis first: a wrong --by is said before the cross-validation.
 	axis, by, unit, err := overlap.Axis(log, opts.by)
@@ -128,7 +113,6 @@ func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args
 			return err
 		}
 	default:
-		g.specNotes(spec)
 		ev, err := evaluateDataset(ctx, g, ds, 5, opts.trees, opts.seed, nil, opts.format.json())
 		if err != nil {
 			return err
@@ -154,9 +138,7 @@ func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args
 	return g.writeOutput(opts.output, func(w io.Writer) error {
 		switch opts.format.value {
 		case "json":
-			enc := json.NewEncoder(w)
-			enc.SetIndent("", "  ")
-			return enc.Encode(res)
+			return writeJSON(w, res)
 		case "csv":
 			return res.WriteCSV(w)
 		}
