@@ -11,13 +11,19 @@ import (
 
 // A ResultWriter writes results as they come, in one view: JSON (an array
 // of Result objects), CSV (CSVColumns, then p_CLASS for every class), or
-// the command's own table. Stop ends the results with the error that
+// a table for a person (TableWriter). Stop ends the results with the error that
 // stopped the run, where a person reads them; Close finishes the view.
 type ResultWriter interface {
 	Write(*Result) error
 	Stop(err error)
 	Close() error
 }
+
+var (
+	_ ResultWriter = (*JSONWriter)(nil)
+	_ ResultWriter = (*CSVWriter)(nil)
+	_ ResultWriter = (*TableWriter)(nil)
+)
 
 // CSVColumns are the first columns of classify's CSV, in order; a column
 // p_CLASS per class of the model follows them. Warnings about the model as

@@ -10,7 +10,8 @@ import (
 	"testing"
 )
 
-// TestResultWritersKeepTheirContract checks the CSV columns (CSVColumns,
+// TestResultWritersKeepTheirContract checks the table's framing (the
+// model's warnings first, at most 80 columns, the stop said last), the CSV columns (CSVColumns,
 // then p_CLASS per class, probabilities summing to 1 within 1e-3, the
 // rounding of four decimals over up to ~40 classes) and that the JSON is
 // a valid array of as many objects, also when empty or stopped.
@@ -18,9 +19,10 @@ func TestResultWritersKeepTheirContract(t *testing.T) {
 	b, _ := demoModel(t)
 	c := New(b, nil)
 	digs := demoReadings(t)[:3]
-	var cb, jb bytes.Buffer
+	var cb, jb, tb bytes.Buffer
 	cw := NewCSVWriter(&cb, b.Classes, []string{"a warning"})
 	jw := NewJSONWriter(&jb)
+	tw := NewTableWriter(&tb, 3, []string{"a warning"})
 	for i := range digs {
 		r, err := c.Classify(&digs[i])
 		if err != nil {
@@ -30,8 +32,25 @@ func TestResultWritersKeepTheirContract(t *testing.T) {
 			t.Fatal(err)
 		}
 		jw.Write(r)
+		tw.Write(r)
 	}
 	cw.Stop(errors.New("digs.csv:9: bad row\nmore"))
+	tw.Stop(errors.New("digs.csv:9: bad row\nmore"))
+	if err := tw.Close(); err != nil {
+		t.Fatal(err)
+	}
+	// The table: the model's warnings first, then one block a reading, each
+	// in 80 columns, and the stop said last.
+	table := tb.String()
+	if !strings.HasPrefix(table, "!! a warning\n") || !strings.HasSuffix(table, "stopped: digs.csv:9: bad row\n") ||
+		strings.Count(table, strings.Repeat("─", 78)) != len(digs) {
+		t.Errorf("table framing wrong:\n%s", table)
+	}
+	for _, line := range strings.Split(table, "\n") {
+		if n := len([]rune(line)); n > 80 {
+			t.Errorf("table line of %d columns: %q", n, line)
+		}
+	}
 	if err := cw.Close(); err != nil {
 		t.Fatal(err)
 	}

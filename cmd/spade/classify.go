@@ -1,7 +1,6 @@
 package main
 
 import (
-	"bufio"
 	"context"
 	"errors"
 	"fmt"
@@ -206,5 +205,5 @@ func newResultWriter(w io.Writer, format string, classes []string, top int, warn
 	case "csv":
 		return classify.NewCSVWriter(w, classes, warnings)
 	}
-	return &tableWriter{w: bufio.NewWriter(w), top: top, warnings: warnings}
+	return classify.NewTableWriter(w, top, warnings)
 }

@@ -131,7 +131,7 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 		if err != nil {
 			return err
 		}
-		writeResultTable(w, r, 4)
+		classify.WriteTable(w, r, 4)
 		if n := notes[r.Dig]; n != "" {
 			fmt.Fprint(w, textui.Wrap("(what it really was: "+strings.TrimPrefix(n, "simulated: ")+")", 78, "     "))
 		}

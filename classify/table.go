@@ -1,4 +1,4 @@
-package main
+package classify
 
 import (
 	"bufio"
@@ -7,48 +7,55 @@ import (
 	"slices"
 	"strings"
 
-	"github.com/spade-detect/spade/internal/cli"
-
-	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/internal/textui"
 )
 
-// tableWriter is classify's table view: each reading in at most 80
-// columns, its caution first.
-type tableWriter struct {
+// TableWriter is the table view of results, for a person: each reading in
+// at most 80 columns, its caution first; warnings about the model as a
+// whole (Classifier.Warnings) head it.
+type TableWriter struct {
 	w        *bufio.Writer
 	top      int
 	n        int
 	warnings []string
 }
 
-func (t *tableWriter) Write(r *classify.Result) error {
+// NewTableWriter writes results as tables, each with its top classes (and
+// every class behind a caution).
+func NewTableWriter(w io.Writer, top int, warnings []string) *TableWriter {
+	return &TableWriter{w: bufio.NewWriter(w), top: top, warnings: warnings}
+}
+
+func (t *TableWriter) Write(r *Result) error {
 	if t.n == 0 {
 		for _, w := range t.warnings {
 			fmt.Fprint(t.w, textui.Wrap("!! "+w, 78, ""))
 		}
 	}
 	t.n++
-	writeResultTable(t.w, r, t.top)
+	WriteTable(t.w, r, t.top)
 	return nil
 }
 
 // Stop says in the table what stopped the run.
-func (t *tableWriter) Stop(err error) {
-	fmt.Fprint(t.w, textui.Wrap("stopped: "+cli.OneLine(err), 78, ""))
+func (t *TableWriter) Stop(err error) {
+	fmt.Fprint(t.w, textui.Wrap("stopped: "+firstLine(err.Error()), 78, ""))
 }
 
-func (t *tableWriter) Close() error { return t.w.Flush() }
+func (t *TableWriter) Close() error { return t.w.Flush() }
 
-// writeResultTable prints one reading in at most 80 columns; a caution is
-// the first thing said.
-func writeResultTable(w io.Writer, r *classify.Result, top int) {
+// WriteTable writes one reading's result in at most 80 columns, its top
+// classes and every class behind a caution; a caution is the first thing
+// said.
+func WriteTable(w io.Writer, r *Result, top int) {
 	fmt.Fprintf(w, "%s\n", strings.Repeat("─", 78))
 	if c := r.Caution; c != nil {
 		fmt.Fprint(w, textui.WrapHanging(r.Dig+"  ", "!! "+c.Message, 78, "     "))
 		fmt.Fprint(w, textui.Wrap(hazardLine(r)+"; a probability is never a guarantee", 78, "     "))
 	} else {
-		fmt.Fprintf(w, "%s  %s\n", r.Dig, verdictLine(r))
+		// At most 80 columns (Wrap's width is exclusive), so a long class
+		// name or dig id goes on a second line.
+		fmt.Fprint(w, textui.WrapHanging(r.Dig+"  ", verdictLine(r), 81, "     "))
 	}
 	if r.Novelty.Unfamiliar {
 		fmt.Fprint(w, textui.Wrap("?? "+r.Decision.Note, 78, "     "))
@@ -78,7 +85,7 @@ func writeResultTable(w io.Writer, r *classify.Result, top int) {
 }
 
 // hazardLine says what the hazard check found, in one line.
-func hazardLine(r *classify.Result) string {
+func hazardLine(r *Result) string {
 	h := r.Hazard
 	if !h.Available {
 		return "hazard check: UNAVAILABLE for this model"
@@ -93,21 +100,21 @@ func hazardLine(r *classify.Result) string {
 	return fmt.Sprintf("hazard check: %s; %s", h.Tier, strings.Join(parts, ", "))
 }
 
-func verdictLine(r *classify.Result) string {
+func verdictLine(r *Result) string {
 	d := r.Decision
 	switch d.Verdict {
-	case classify.VerdictUnsure:
+	case VerdictUnsure:
 		return fmt.Sprintf("UNSURE: looks most like %s (%s), but see below", r.Top.Class, textui.Prob(r.Top.Probability, 0))
-	case classify.VerdictNone:
+	case VerdictNone:
 		return fmt.Sprintf("no verdict: looks most like %s (%s); give --values for one", r.Top.Class, textui.Prob(r.Top.Probability, 0))
-	case classify.VerdictDig:
+	case VerdictDig:
 		return fmt.Sprintf("DIG: %s %s, expected value %+.1f by your values", r.Top.Class, textui.Prob(r.Top.Probability, 0), d.ExpectedValue)
 	default:
 		return fmt.Sprintf("skip: %s %s, expected value %+.1f by your values", r.Top.Class, textui.Prob(r.Top.Probability, 0), d.ExpectedValue)
 	}
 }
 
-func shareList(ps []classify.ClassP, n int) string {
+func shareList(ps []ClassP, n int) string {
 	var s []string
 	for _, p := range ps[:min(n, len(ps))] {
 		if p.Probability < 0.01 {
