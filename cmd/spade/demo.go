@@ -92,11 +92,12 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 	if err != nil {
 		return err
 	}
-	ov, err := analyseOverlap(ds, ev.Probs, vals, axis, by, overlap.Options{})
+	keepers, hazards := classify.Roles(vals, ds.Classes)
+	ov, err := overlap.Analyse(by, axis, ds.Classes, ds.Y, ev.Probs, overlap.Options{Keepers: keepers, Hazards: hazards})
 	if err != nil {
 		return err
 	}
-	writeOverlapTable(w, ov, false)
+	ov.WriteTable(w, true)
 
 	// 3. A model, and new readings.
 	fmt.Fprintf(w, "\n== 3. New readings, classified by a model of the whole history\n\n")

@@ -5,15 +5,11 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"math"
-	"strconv"
-	"strings"
 
 	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/classify/overlap"
 	"github.com/spade-detect/spade/classify/plots"
 	"github.com/spade-detect/spade/features"
-	"github.com/spade-detect/spade/internal/textui"
 	"github.com/spade-detect/spade/train"
 	"github.com/spf13/cobra"
 	"github.com/spf13/pflag"
@@ -119,7 +115,8 @@ func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args
 		}
 		probs = ev.Probs
 	}
-	res, err := analyseOverlap(ds, probs, vals, axis, by, overlap.Options{Width: opts.bin, MinTopShare: opts.minTop, MaxEntropy: opts.maxEntropy})
+	keepers, hazards := classify.Roles(vals, ds.Classes)
+	res, err := overlap.Analyse(by, axis, ds.Classes, ds.Y, probs, overlap.Options{Width: opts.bin, MinTopShare: opts.minTop, MaxEntropy: opts.maxEntropy, Keepers: keepers, Hazards: hazards})
 	if err != nil {
 		return err
 	}
@@ -142,7 +139,7 @@ func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args
 		case "csv":
 			return res.WriteCSV(w)
 		}
-		writeOverlapTable(w, res, vals == nil)
+		res.WriteTable(w, vals != nil)
 		return nil
 	})
 }
@@ -163,58 +160,6 @@ func modelProbs(path string, kind features.Label, log *features.Log, ds *train.D
 	}
 	return probs, notes, err
 }
-
-// analyseOverlap runs the analysis on an axis (overlap.Axis), with the
-// keepers and hazards of the values file.
-func analyseOverlap(ds *train.Dataset, probs [][]float64, vals *classify.Values, axis []float64, by string, o overlap.Options) (*overlap.Result, error) {
-	o.Keepers, o.Hazards = classify.Roles(vals, ds.Classes)
-	return overlap.Analyse(by, axis, ds.Classes, ds.Y, probs, o)
-}
-
-func writeOverlapTable(w io.Writer, r *overlap.Result, noValues bool) {
-	fmt.Fprintf(w, "Ambiguous %s ranges in your %d digs (bins of %g; ambiguous when the top\n", r.By, r.Digs, r.Width)
-	fmt.Fprintf(w, "class has under %.0f%% or the entropy is over %g bit)\n", 100*r.MinTopShare, r.MaxEntropy)
-	for _, n := range r.Notes {
-		fmt.Fprint(w, textui.Wrap("note: "+n, 78, ""))
-	}
-	if len(r.Ranges) == 0 {
-		fmt.Fprintln(w, "\nNo ambiguous ranges: every bin has a clear top class.")
-	}
-	for _, rg := range r.Ranges {
-		fmt.Fprintf(w, "\n%s to %s: %d digs, %.1f bits", num(rg.From), num(rg.To), rg.Digs, rg.Entropy)
-		if rg.TrashOnly {
-			fmt.Fprint(w, ", only trash collides here: skipping costs nothing")
-		}
-		fmt.Fprintln(w)
-		var cl []string
-		for _, c := range rg.Classes[:min(5, len(rg.Classes))] {
-			cl = append(cl, fmt.Sprintf("%s %.0f%%", c.Class, 100*c.Share))
-		}
-		if len(rg.Classes) > 5 {
-			cl = append(cl, fmt.Sprintf("%d more", len(rg.Classes)-5))
-		}
-		fmt.Fprint(w, textui.Wrap(strings.Join(cl, ", "), 78, "  "))
-		for _, h := range rg.Hazards {
-			fmt.Fprint(w, textui.Wrap("!! "+h.Words+" (possible ordnance)", 78, "  "))
-		}
-		for _, k := range rg.Keepers {
-			fmt.Fprint(w, textui.Wrap(k.Words, 78, "  "))
-		}
-		if res := rg.Resolution; res != nil {
-			line := fmt.Sprintf("spade is right on %.0f%% of these digs where the majority rule is right on %.0f%%; entropy %.1f -> %.1f bits",
-				100*res.ModelAccuracy, 100*res.MajorityAccuracy, res.EntropyBefore, res.EntropyAfter)
-			if res.TrashSkipped != nil {
-				line += fmt.Sprintf("; %.0f%% of the trash here could be skipped keeping 99%% of keepers", 100**res.TrashSkipped)
-			}
-			fmt.Fprint(w, textui.Wrap(line, 78, "  "))
-		}
-	}
-	if noValues {
-		fmt.Fprintln(w, "\n(No keepers named: give --values or --keep to see each keeper's chance.)")
-	}
-}
-
-func num(v float64) string { return strconv.FormatFloat(math.Round(v*100)/100, 'f', -1, 64) }
 
 // plotPriority lists hazards, then keepers, for the overlap plot's colours.
 func plotPriority(vals *classify.Values, classes []string) []string {
