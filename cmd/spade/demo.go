@@ -14,6 +14,7 @@ import (
 	"github.com/spade-detect/spade/classify/plots"
 	"github.com/spade-detect/spade/datasets"
 	"github.com/spade-detect/spade/features"
+	"github.com/spade-detect/spade/internal/report"
 	"github.com/spade-detect/spade/internal/textui"
 	"github.com/spade-detect/spade/train"
 	"github.com/spf13/cobra"
@@ -84,7 +85,7 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 	if err != nil {
 		return err
 	}
-	writeEvaluation(w, ev, string(features.LabelBoth))
+	report.WriteEvaluation(w, ev, string(features.LabelBoth))
 
 	// 2. Which ranges are ambiguous?
 	fmt.Fprintf(w, "\n== 2. Which display IDs could be anything on this ground?\n\n")

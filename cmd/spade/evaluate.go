@@ -8,6 +8,7 @@ import (
 	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/datasets"
 	"github.com/spade-detect/spade/features"
+	"github.com/spade-detect/spade/internal/report"
 	"github.com/spade-detect/spade/train"
 	"github.com/spf13/cobra"
 	"github.com/spf13/pflag"
@@ -100,9 +101,9 @@ func runEvaluate(ctx context.Context, g *globalOptions, opts evaluateOptions, ar
 		if opts.format.json() {
 			return writeJSON(w, ev)
 		}
-		writeEvaluation(w, ev, string(h.kind))
+		report.WriteEvaluation(w, ev, string(h.kind))
 		if ev.Screen == nil && !ev.BaselineOnly {
-			writeScreenEvaluation(w, nil)
+			report.WriteScreen(w, nil)
 		}
 		return nil
 	})

@@ -1,4 +1,4 @@
-package main
+package report
 
 import (
 	"fmt"
@@ -10,8 +10,13 @@ import (
 	"github.com/spade-detect/spade/train"
 )
 
-// writeEvaluation prints the cross-validated report in 80 columns.
-func writeEvaluation(w io.Writer, ev *train.Evaluation, label string) {
+// WriteEvaluation writes what evaluate found in 80 columns: spade next to
+// the one number, the learning curve, dig saving, the ordnance screen (or
+// that the hazard check is unavailable), per-class figures, the commonest
+// mistakes and reliability. label is the kind of class told apart. An
+// evaluation that measured no screen (ev.Screen nil) says nothing of it:
+// WriteScreen(w, nil) says the check is unavailable.
+func WriteEvaluation(w io.Writer, ev *train.Evaluation, label string) {
 	how := "stratified"
 	if ev.GroupedBy != "" {
 		how = "whole groups by " + ev.GroupedBy + " held out together"
@@ -67,7 +72,7 @@ func writeEvaluation(w io.Writer, ev *train.Evaluation, label string) {
 		}
 	}
 	if ev.Screen != nil {
-		writeScreenEvaluation(w, ev.Screen)
+		WriteScreen(w, ev.Screen)
 	}
 	writePerClass(w, "spade", ev.Classes, m)
 	fmt.Fprintf(w, "\nReliability (spade): when the top class has probability p, how often it is right\n")
@@ -118,10 +123,11 @@ func writePerClass(w io.Writer, who string, classes []string, m train.Metrics) {
 	writeConfusions(w, who, classes, m.Confusion)
 }
 
-// writeScreenEvaluation reports the ordnance screen: on spade's simulated
-// munitions, each group held out from the screen's own fit, and on the
-// user's digs.
-func writeScreenEvaluation(w io.Writer, s *train.ScreenEvaluation) {
+// WriteScreen reports the ordnance screen: on spade's simulated munitions,
+// each group held out from the screen's own fit, and on the user's digs;
+// nil says that the log cannot carry one, so the hazard check is
+// unavailable.
+func WriteScreen(w io.Writer, s *train.ScreenEvaluation) {
 	fmt.Fprintf(w, "\nOrdnance screen: would it warn of munitions your history lacks?\n")
 	if s == nil {
 		fmt.Fprint(w, textui.Wrap("HAZARD CHECK UNAVAILABLE: this log cannot carry an ordnance screen (no usable amplitudes), so a model of it warns only from your own hazardous digs.", 78, "  "))
