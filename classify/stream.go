@@ -88,3 +88,34 @@ func Stream(ctx context.Context, c *Classifier, next func() (features.Dig, error
 	}
 	return nil
 }
+
+// StreamTo classifies readings as Stream does into out, and finishes it;
+// each, when not nil, is called after every result written. It returns
+// how many results were written. After a bad row (a *features.ParseError)
+// that follows good readings, out says where it stopped (Stop) and is
+// closed, so that every result before the row is kept, and the row's
+// error is returned with n > 0. Any other error, or a bad first row,
+// leaves out unfinished, for the caller to discard.
+func StreamTo(ctx context.Context, c *Classifier, next func() (features.Dig, error), name string, out ResultWriter, each func()) (n int, err error) {
+	err = Stream(ctx, c, next, name, func(r *Result) error {
+		if err := out.Write(r); err != nil {
+			return err
+		}
+		n++
+		if each != nil {
+			each()
+		}
+		return nil
+	})
+	var pe *features.ParseError
+	if err != nil && (n == 0 || !errors.As(err, &pe)) {
+		return n, err
+	}
+	if err != nil {
+		out.Stop(err)
+	}
+	if cerr := out.Close(); cerr != nil {
+		return n, cerr
+	}
+	return n, err
+}

@@ -1,10 +1,12 @@
 package classify
 
 import (
+	"bytes"
 	"context"
 	"errors"
 	"io"
 	"reflect"
+	"strings"
 	"testing"
 
 	"github.com/spade-detect/spade/datasets"
@@ -60,6 +62,18 @@ func TestStreamInOrderAndStopsAtABadRow(t *testing.T) {
 	err := Stream(context.Background(), c, source(StreamBatch+5), "r.csv", func(r *Result) error { got = append(got, r); return nil })
 	if !errors.Is(err, features.ErrNotPositive) || len(got) != StreamBatch+5 {
 		t.Errorf("bad row after %d readings: %d emitted, error %v", StreamBatch+5, len(got), err)
+	}
+	// StreamTo keeps the results before the bad row, and says where it
+	// stopped, last.
+	var buf bytes.Buffer
+	written, err := StreamTo(context.Background(), c, source(7), "r.csv", NewCSVWriter(&buf, b.Classes, nil), nil)
+	rows := strings.Split(strings.TrimSpace(buf.String()), "\n")
+	if !errors.Is(err, features.ErrNotPositive) || written != 7 || len(rows) != 1+7+1 || !strings.HasPrefix(rows[8], "# stopped: r.csv:") {
+		t.Errorf("StreamTo stopped at reading 8: %d written, error %v, output\n%s", written, err, buf.String())
+	}
+	buf.Reset()
+	if written, err := StreamTo(context.Background(), c, source(0), "r.csv", NewCSVWriter(&buf, b.Classes, nil), nil); written != 0 || err == nil || buf.Len() != 0 {
+		t.Errorf("StreamTo on a bad first row: %d written, error %v, output %q (want nothing kept)", written, err, buf.String())
 	}
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()

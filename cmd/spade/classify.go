@@ -126,28 +126,14 @@ func runClassify(ctx context.Context, g *globalOptions, opts classifyOptions, ar
 	defer bar.Done()
 	return g.writeOutput(opts.output, func(w io.Writer) error {
 		out := newResultWriter(w, opts.format.value, bundle.Classes, opts.top, c.Warnings())
-		n := 0
-		err := classify.Stream(ctx, c, next, name, func(r *classify.Result) error {
-			bar.Step(1)
-			n++
-			return out.Write(r)
-		})
+		n, err := classify.StreamTo(ctx, c, next, name, out, func() { bar.Step(1) })
 		var pe *features.ParseError
-		if err != nil && (!errors.As(err, &pe) || n == 0) {
-			return err // an interrupt, a write error, or nothing good: nothing is kept
-		}
-		if err != nil {
-			// A bad row: the results of every reading before it are
-			// written, and the run still fails on it.
-			out.Stop(err)
-		}
-		if cerr := out.Close(); cerr != nil {
-			return cerr
-		}
-		if err != nil {
+		if err != nil && n > 0 && errors.As(err, &pe) {
+			// A bad row: every result before it is written, and the run
+			// still fails on it.
 			return cli.KeepOutput{Err: fmt.Errorf("%w (the results of the %s before it are written)", err, features.Plural(n, "reading"))}
 		}
-		return nil
+		return err
 	})
 }
 
