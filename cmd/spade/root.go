@@ -118,42 +118,13 @@ func newRootCommand(g *globalOptions) *cobra.Command {
 	)
 	for _, c := range root.Commands() {
 		c.Args = cli.ExplainArgs(c.Args)
-		registerValueCompletions(c)
+		var scenarios []string
+		for _, sc := range datasets.Scenarios {
+			scenarios = append(scenarios, sc.Name)
+		}
+		cli.RegisterCompletions(c, scenarios)
 	}
 	return root
-}
-
-// registerValueCompletions offers the values of the flags that take one of
-// a few words: --format (the command's own list, from its help), --label,
-// --scenario and --group.
-func registerValueCompletions(c *cobra.Command) {
-	words := map[string][]string{
-		"label":       {"material", "shape", "both"},
-		"group":       {"site", "date", "month"},
-		"date-format": {"dmy", "mdy"},
-	}
-	for _, sc := range datasets.Scenarios {
-		words["scenario"] = append(words["scenario"], sc.Name)
-	}
-	if f := c.Flags().Lookup("format"); f != nil {
-		words["format"] = strings.Split(f.Usage, ", ")
-	}
-	// Flags that name files complete to files, of the kind they take.
-	for name, exts := range map[string][]string{
-		"model": {"spade"}, "values": {"toml"}, "plot": {"png", "svg"}, "output": nil,
-	} {
-		if c.Flags().Lookup(name) != nil {
-			c.MarkFlagFilename(name, exts...)
-		}
-	}
-	for name, values := range words {
-		if c.Flags().Lookup(name) == nil {
-			continue
-		}
-		c.RegisterFlagCompletionFunc(name, func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
-			return values, cobra.ShellCompDirectiveNoFileComp
-		})
-	}
 }
 
 // run executes one command line and returns the exit code; main and the
