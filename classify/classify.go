@@ -420,6 +420,11 @@ func ReferenceScores(b *train.Bundle) []float64 {
 	return ref
 }
 
+// Safety is what every summary of spade's (the root help, the demo, the
+// season's report) says of the harm it can do: what a possible-ordnance
+// caution asks, what comes first, and what a probability is not.
+const Safety = "Safety: a possible-ordnance caution means do not dig and do not touch: mark the spot and report it to the police or the authorities. Permission, local law and heritage-reporting rules come first. A probability is never a guarantee."
+
 // HazardStatus says whether a model can warn of ordnance, for every view
 // of a model (train, inspect, evaluate), in every format.
 type HazardStatus struct {

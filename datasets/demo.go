@@ -37,6 +37,11 @@ const (
 	DemoReadingsName = "demo/readings.csv"
 )
 
+// DemoLog reads the embedded demo history, every dig labelled.
+func DemoLog() (*features.Log, error) {
+	return features.ReadLog(bytes.NewReader(DemoHistory), DemoHistoryName, features.ReadOptions{Require: features.LabelBoth})
+}
+
 // instrumentWrite rounds as the demo instrument displays: phase to 0.01°,
 // amplitude to 4 significant digits.
 var instrumentWrite = features.WriteOptions{PhaseDecimals: 2, AmpDigits: 4, Labels: true}

@@ -4,14 +4,12 @@ import (
 	"bytes"
 	"context"
 	"fmt"
-	"io"
 	"os"
 	"path/filepath"
 	"strings"
 
 	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/classify/overlap"
-	"github.com/spade-detect/spade/classify/plots"
 	"github.com/spade-detect/spade/datasets"
 	"github.com/spade-detect/spade/features"
 	"github.com/spade-detect/spade/internal/report"
@@ -58,7 +56,7 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 		return usagef("--trees must be at least 1")
 	}
 	w := g.stdout
-	log, err := features.ReadLog(bytes.NewReader(datasets.DemoHistory), datasets.DemoHistoryName, features.ReadOptions{Require: features.LabelBoth})
+	log, err := datasets.DemoLog()
 	if err != nil {
 		return err
 	}
@@ -102,20 +100,15 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 
 	// 3. A model, and new readings.
 	fmt.Fprintf(w, "\n== 3. New readings, classified by a model of the whole history\n\n")
-	bar := g.progress(opts.trees+screenTrees(false, log), "growing trees", false)
+	bar := g.progress(opts.trees+train.ScreenTrees(log, train.ScreenOptions{}), "growing trees", false)
 	step := func(int) { bar.Step(1) }
-	bundle, err := train.TrainDataset(ctx, ds, spec, train.TrainOptions{Label: features.LabelBoth, Version: version,
-		Forest: train.Options{Trees: opts.trees, Seed: opts.seed, Progress: step}})
-	if err == nil {
-		err = bundle.AddScreen(ctx, log, train.ScreenOptions{Seed: opts.seed, Progress: step})
-	}
-	if err == nil {
-		classify.Prepare(bundle)
-	}
+	bundle, err := train.TrainBundle(ctx, log, spec, train.TrainOptions{Label: features.LabelBoth, Version: version,
+		Forest: train.Options{Trees: opts.trees, Seed: opts.seed, Progress: step}, Screen: train.ScreenOptions{Progress: step}})
 	bar.Done()
 	if err != nil {
 		return err
 	}
+	classify.Prepare(bundle)
 	fmt.Fprint(w, textui.Wrap(classify.HazardStatusOf(bundle).Text+" The readings below have no depth, so the screen judges them by phase and amplitude and says at most \"cannot be ruled out\"; the history's own ordnance digs give the \"likely\" tier.", 78, ""))
 	fmt.Fprintln(w)
 	modelPath := filepath.Join(opts.dir, "demo.spade")
@@ -140,39 +133,17 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 	}
 
 	// 4. Pictures.
-	written := []string{modelPath}
-	phases := make([][]float64, len(log.Digs))
-	for i := range log.Digs {
-		for _, r := range log.Digs[i].Readings {
-			phases[i] = append(phases[i], r.Phase())
-		}
-	}
-	pics := []struct {
-		name string
-		draw func(io.Writer, string) error
-	}{
-		{"overlap.png", func(w io.Writer, f string) error {
-			return plots.Overlap(w, f, ov, unit, plotPriority(vals, ds.Classes))
-		}},
-		{"reliability.png", func(w io.Writer, f string) error { return plots.Reliability(w, f, ev.Model.Reliability) }},
-		{"confusion.png", func(w io.Writer, f string) error { return plots.Confusion(w, f, ds.Classes, ev.Model.Confusion) }},
-		{"spectra.png", func(w io.Writer, f string) error { return plots.Spectra(w, f, log.Freqs, ds.Classes, phases, ds.Y) }},
-	}
-	for _, p := range pics {
-		path := filepath.Join(opts.dir, p.name)
-		if err := plots.WriteFile(path, p.draw); err != nil {
-			return fmt.Errorf("demo: %w", err)
-		}
-		written = append(written, path)
+	season := &report.Season{Log: log, Dataset: ds, Eval: ev, Overlap: ov, Unit: unit, Keepers: keepers, Hazards: hazards}
+	pictures, err := report.WritePictures(opts.dir, season.Pictures(report.PictureOverlap, report.PictureReliability, report.PictureConfusion, report.PictureSpectra))
+	if err != nil {
+		return fmt.Errorf("demo: %w", err)
 	}
 	fmt.Fprintf(w, "\n== 4. Written into %s\n\n", opts.dir)
-	for _, p := range written {
+	for _, p := range append([]string{modelPath}, pictures...) {
 		fmt.Fprintf(w, "  %s\n", p)
 	}
 	fmt.Fprintf(w, "\nYour own log next: spade train LOG -o my.spade, then spade classify --model\n")
 	fmt.Fprintf(w, "my.spade READINGS and spade overlap LOG (see the README for the log format).\n")
-	fmt.Fprintf(w, "\nSafety: a possible-ordnance caution means do not dig; mark the spot and report\n")
-	fmt.Fprintf(w, "it to the authorities. Permission, local law and heritage-reporting rules come\n")
-	fmt.Fprintf(w, "first. A probability is never a guarantee.\n")
+	fmt.Fprint(w, "\n"+textui.WrapHanging("", classify.Safety, 80, ""))
 	return nil
 }

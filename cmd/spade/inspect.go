@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"encoding/json"
 	"fmt"
 	"sort"
 	"strings"
@@ -45,9 +44,7 @@ func runInspect(_ context.Context, g *globalOptions, opts inspectOptions, args [
 	w := g.stdout
 	s := b.Summary
 	if opts.format.json() {
-		enc := json.NewEncoder(w)
-		enc.SetIndent("", "  ")
-		return enc.Encode(map[string]any{"format": b.Format, "spec": b.Spec, "label": b.Label, "classes": b.Classes, "summary": s, "hazard_check": classify.HazardStatusOf(b)})
+		return writeJSON(w, map[string]any{"format": b.Format, "spec": b.Spec, "label": b.Label, "classes": b.Classes, "summary": s, "hazard_check": classify.HazardStatusOf(b)})
 	}
 	fmt.Fprintf(w, "model %s (format %d)\n", args[0], b.Format)
 	fmt.Fprint(w, textui.Wrap(classify.HazardStatusOf(b).Text, 78, "  "))

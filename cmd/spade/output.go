@@ -6,6 +6,7 @@ import (
 	"errors"
 	"io"
 
+	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/internal/atomicfile"
 	"github.com/spade-detect/spade/internal/cli"
 )
@@ -42,4 +43,17 @@ func (g *globalOptions) writeOutput(name string, write func(io.Writer) error) er
 		return err
 	}
 	return kept
+}
+
+// newResultWriter writes results in the view asked for; warnings about
+// the model as a whole (above all, that it cannot warn of ordnance) head
+// the table and the CSV, and every JSON result carries its hazard check.
+func newResultWriter(w io.Writer, format string, classes []string, top int, warnings []string) classify.ResultWriter {
+	switch format {
+	case "json":
+		return classify.NewJSONWriter(w)
+	case "csv":
+		return classify.NewCSVWriter(w, classes, warnings)
+	}
+	return classify.NewTableWriter(w, top, warnings)
 }

@@ -2,15 +2,12 @@ package main
 
 import (
 	"context"
-	"errors"
-	"fmt"
 	"io"
 
 	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/classify/overlap"
 	"github.com/spade-detect/spade/classify/plots"
-	"github.com/spade-detect/spade/features"
-	"github.com/spade-detect/spade/train"
+	"github.com/spade-detect/spade/internal/report"
 	"github.com/spf13/cobra"
 	"github.com/spf13/pflag"
 )
@@ -125,10 +122,11 @@ func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args
 		res.Notes = append(res.Notes, "This log has display IDs only: the ranges come from your digs alone. Log phase and amplitude at two or more frequencies and overlap also shows what spade resolves in each range.")
 	}
 	if opts.plot != "" {
-		if err := plots.WriteFile(opts.plot, func(w io.Writer, format string) error {
-			return plots.Overlap(w, format, res, unit, plotPriority(vals, ds.Classes))
-		}); err != nil {
-			return err
+		season := report.Season{Overlap: res, Unit: unit, Keepers: keepers, Hazards: hazards}
+		for _, p := range season.Pictures(report.PictureOverlap) {
+			if err := p.WriteFile(opts.plot); err != nil {
+				return err
+			}
 		}
 		defer g.note("wrote %s", opts.plot)
 	}
@@ -142,30 +140,4 @@ func runOverlap(ctx context.Context, g *globalOptions, opts overlapOptions, args
 		res.WriteTable(w, vals != nil)
 		return nil
 	})
-}
-
-// modelProbs takes the digs' held-out probabilities from a model file
-// (Bundle.HeldOut), after the checks a command line needs.
-func modelProbs(path string, kind features.Label, log *features.Log, ds *train.Dataset) ([][]float64, []string, error) {
-	b, err := train.Load(path)
-	if err != nil {
-		return nil, nil, err
-	}
-	if b.Label != kind {
-		return nil, nil, usagef("the model tells %s apart; give --label %s", b.Label, b.Label)
-	}
-	probs, notes, err := b.HeldOut(log, ds)
-	if errors.Is(err, train.ErrOtherLog) {
-		return nil, nil, fmt.Errorf("--model %s: %w; train a model on this log, or leave out --model to cross-validate", path, err)
-	}
-	return probs, notes, err
-}
-
-// plotPriority lists hazards, then keepers, for the overlap plot's colours.
-func plotPriority(vals *classify.Values, classes []string) []string {
-	if vals == nil {
-		vals = classify.DefaultValues()
-	}
-	keepers, hazards := vals.Split(classes)
-	return append(hazards, keepers...)
 }

@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"encoding/json"
 	"fmt"
 	"io"
 	"text/tabwriter"
@@ -78,9 +77,7 @@ func runResponse(_ context.Context, g *globalOptions, o responseOptions) error {
 	return g.writeOutput("-", func(w io.Writer) error {
 		switch o.format {
 		case "json":
-			enc := json.NewEncoder(w)
-			enc.SetIndent("", "  ")
-			return enc.Encode(rows)
+			return writeJSON(w, rows)
 		case "table":
 			tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 			fmt.Fprintln(tw, "hz\tx\tr\tphase°\tamp\t")

@@ -10,6 +10,7 @@ import (
 	"strings"
 	"syscall"
 
+	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/datasets"
 	"github.com/spade-detect/spade/features"
 	"github.com/spade-detect/spade/internal/cli"
@@ -69,16 +70,13 @@ type usageError = cli.UsageError
 
 func usagef(format string, args ...any) error { return cli.Usagef(format, args...) }
 
-const rootLong = `spade learns from your own dig history (every reading, with what actually came
+var rootLong = `spade learns from your own dig history (every reading, with what actually came
 out of the ground) and gives, for a new multi-frequency reading, a probability
 per material and shape class instead of one number. It says whether a dig is
 worth it by your own values, warns when a reading could be ordnance, and shows
 which ID ranges are ambiguous on your ground with your machine.
 
-Safety: a possible-ordnance warning means do not dig: mark the spot and report
-it to the authorities. Permission, local law and heritage-reporting rules come
-first. A probability is never a guarantee.
-
+` + textui.WrapHanging("", classify.Safety, 80, "") + `
 Exit codes:
   0  success
   1  an error in the data or the run (the message names file, line and column)

@@ -3,7 +3,6 @@ package main
 import (
 	"bufio"
 	"context"
-	"encoding/json"
 	"fmt"
 
 	"github.com/spade-detect/spade/internal/cli"
@@ -92,7 +91,11 @@ func runTrain(ctx context.Context, g *globalOptions, opts trainOptions, args []s
 	}
 	spec := features.SpecOf(log)
 	g.specNotes(spec)
-	bar := g.progress(opts.trees+screenTrees(opts.noScreen, log), "growing trees", opts.format.json())
+	total := opts.trees // the progress bar's: the forest's trees, and the screen's
+	if !opts.noScreen {
+		total += train.ScreenTrees(log, train.ScreenOptions{})
+	}
+	bar := g.progress(total, "growing trees", opts.format.json())
 	step := func(int) { bar.Step(1) }
 	bundle, err := train.TrainBundle(ctx, log, spec, train.TrainOptions{
 		Label: kind, Version: version, Skipped: len(log.Bad) + log.Unlabelled,
@@ -118,9 +121,7 @@ func runTrain(ctx context.Context, g *globalOptions, opts trainOptions, args []s
 		return err
 	}
 	if opts.format.json() {
-		enc := json.NewEncoder(g.stdout)
-		enc.SetIndent("", "  ")
-		return enc.Encode(map[string]any{"model": opts.output, "summary": bundle.Summary, "classes": bundle.Classes, "freqs": spec.Freqs,
+		return writeJSON(g.stdout, map[string]any{"model": opts.output, "summary": bundle.Summary, "classes": bundle.Classes, "freqs": spec.Freqs,
 			"hazard_check": classify.HazardStatusOf(bundle), "warnings": train.Notes(bundle, log)})
 	}
 	s := bundle.Summary
@@ -132,12 +133,4 @@ func runTrain(ctx context.Context, g *globalOptions, opts trainOptions, args []s
 	}
 	fmt.Fprintln(g.stdout, "For the full report next to the single-number baseline: spade evaluate LOG")
 	return nil
-}
-
-// screenTrees is how many trees the screen will grow, for the progress bar.
-func screenTrees(off bool, log *features.Log) int {
-	if off {
-		return 0
-	}
-	return train.ScreenTrees(log, train.ScreenOptions{})
 }
