@@ -133,24 +133,60 @@ func (f *freqColumns) slot(k columnKind) *int {
 
 // parseHeader checks a header row; errors name the column.
 func parseHeader(file string, line int, cells []string, displayIDOnly bool) (*schema, error) {
-	s := &schema{index: map[columnKind]int{}, perFreq: map[int]*freqColumns{}}
-	herr := func(col string, format string, args ...any) error {
-		return &ParseError{File: file, Line: line, Column: col, Err: cause(ErrHeader, format, args...)}
+	herr := func(col string, err error) error { return &ParseError{File: file, Line: line, Column: col, Err: err} }
+	s, err := placeColumns(cells, herr)
+	if err != nil {
+		return nil, err
 	}
+	for hz := range s.perFreq {
+		s.freqs = append(s.freqs, hz)
+	}
+	// In order, so that of two faulty frequencies the lower is always the
+	// one reported.
+	slices.Sort(s.freqs)
+	for _, hz := range s.freqs {
+		ground, err := s.perFreq[hz].check(hz, herr)
+		if err != nil {
+			return nil, err
+		}
+		s.ground = s.ground || ground
+	}
+	if _, hasID := s.index[colDisplayID]; len(s.freqs) == 0 && !(hasID && displayIDOnly) {
+		msg := "no reading columns (phase_<hz> and amp_<hz>, or x_<hz> and r_<hz>)"
+		if hasID {
+			msg += "; a log of display IDs only is read by spade overlap and spade evaluate, which need no phase"
+		}
+		return nil, herr("phase_<hz>", cause(ErrMissingColumn, "%s", msg))
+	}
+	if s.ground {
+		for _, hz := range s.freqs {
+			if fc := s.perFreq[hz]; fc.groundPhase < 0 && fc.groundX < 0 {
+				return nil, herr(fmt.Sprintf("ground_phase_%d", hz), cause(ErrMissingColumn, "ground readings must cover the same frequencies as the target's"))
+			}
+		}
+	}
+	return s, nil
+}
+
+// placeColumns names each header cell's column and gives it its place:
+// a per-dig column, a slot of its frequency, or ignored. An empty or
+// repeated name, or two columns for one slot, is refused.
+func placeColumns(cells []string, herr func(string, error) error) (*schema, error) {
+	s := &schema{index: map[columnKind]int{}, perFreq: map[int]*freqColumns{}}
 	seen := map[string]bool{}
 	for i, c := range cells {
 		name := strings.ToLower(strings.TrimSpace(c))
 		s.names = append(s.names, name)
 		if name == "" {
-			return nil, herr(fmt.Sprintf("column %d", i+1), "empty column name")
+			return nil, herr(fmt.Sprintf("column %d", i+1), cause(ErrHeader, "empty column name"))
 		}
 		if seen[name] {
-			return nil, herr(name, "column appears twice")
+			return nil, herr(name, cause(ErrHeader, "column appears twice"))
 		}
 		seen[name] = true
 		kind, hz, err := classifyColumn(name)
 		if err != nil {
-			return nil, herr(name, "%v", err)
+			return nil, herr(name, cause(ErrHeader, "%v", err))
 		}
 		switch {
 		case kind == colIgnored:
@@ -165,53 +201,34 @@ func parseHeader(file string, line int, cells []string, displayIDOnly bool) (*sc
 			}
 			slot := fc.slot(kind)
 			if *slot >= 0 {
-				return nil, herr(name, "same frequency as column %q", s.names[*slot])
+				return nil, herr(name, cause(ErrHeader, "same frequency as column %q", s.names[*slot]))
 			}
 			*slot = i
 		}
 	}
-	for hz, fc := range s.perFreq {
-		polar, comps := fc.phase >= 0 || fc.amp >= 0, fc.x >= 0 || fc.r >= 0
-		switch {
-		case polar && comps:
-			return nil, herr(fmt.Sprintf("phase_%d", hz), "give phase/amp or x/r at %d Hz, not both", hz)
-		case !polar && !comps:
-			return nil, &ParseError{File: file, Line: line, Column: fmt.Sprintf("phase_%d", hz),
-				Err: cause(ErrMissingColumn, "ground reading at %d Hz but no target reading", hz)}
-		case polar && (fc.phase < 0 || fc.amp < 0):
-			return nil, &ParseError{File: file, Line: line, Column: fmt.Sprintf("amp_%d", hz),
-				Err: cause(ErrMissingColumn, "phase_%d and amp_%d go together", hz, hz)}
-		case comps && (fc.x < 0 || fc.r < 0):
-			return nil, &ParseError{File: file, Line: line, Column: fmt.Sprintf("r_%d", hz),
-				Err: cause(ErrMissingColumn, "x_%d and r_%d go together", hz, hz)}
-		}
-		gp, gc := fc.groundPhase >= 0 || fc.groundAmp >= 0, fc.groundX >= 0 || fc.groundR >= 0
-		if (gp && (fc.groundPhase < 0 || fc.groundAmp < 0)) || (gc && (fc.groundX < 0 || fc.groundR < 0)) || (gp && gc) {
-			return nil, herr(fmt.Sprintf("ground_phase_%d", hz), "ground reading at %d Hz needs ground_phase/ground_amp or ground_x/ground_r", hz)
-		}
-		if gp || gc {
-			s.ground = true
-		}
-		s.freqs = append(s.freqs, hz)
-	}
-	slices.Sort(s.freqs)
-	if _, hasID := s.index[colDisplayID]; len(s.freqs) == 0 && !(hasID && displayIDOnly) {
-		msg := "no reading columns (phase_<hz> and amp_<hz>, or x_<hz> and r_<hz>)"
-		if hasID {
-			msg += "; a log of display IDs only is read by spade overlap and spade evaluate, which need no phase"
-		}
-		return nil, &ParseError{File: file, Line: line, Column: "phase_<hz>", Err: cause(ErrMissingColumn, "%s", msg)}
-	}
-	if s.ground {
-		for _, hz := range s.freqs {
-			fc := s.perFreq[hz]
-			if fc.groundPhase < 0 && fc.groundX < 0 {
-				return nil, &ParseError{File: file, Line: line, Column: fmt.Sprintf("ground_phase_%d", hz),
-					Err: cause(ErrMissingColumn, "ground readings must cover the same frequencies as the target's")}
-			}
-		}
-	}
 	return s, nil
+}
+
+// check refuses a frequency's columns that do not pair up: a target
+// reading as phase/amp or x/r (not both, not half), and a ground reading
+// likewise. It reports whether there is a ground reading.
+func (fc *freqColumns) check(hz int, herr func(string, error) error) (ground bool, err error) {
+	polar, comps := fc.phase >= 0 || fc.amp >= 0, fc.x >= 0 || fc.r >= 0
+	switch {
+	case polar && comps:
+		return false, herr(fmt.Sprintf("phase_%d", hz), cause(ErrHeader, "give phase/amp or x/r at %d Hz, not both", hz))
+	case !polar && !comps:
+		return false, herr(fmt.Sprintf("phase_%d", hz), cause(ErrMissingColumn, "ground reading at %d Hz but no target reading", hz))
+	case polar && (fc.phase < 0 || fc.amp < 0):
+		return false, herr(fmt.Sprintf("amp_%d", hz), cause(ErrMissingColumn, "phase_%d and amp_%d go together", hz, hz))
+	case comps && (fc.x < 0 || fc.r < 0):
+		return false, herr(fmt.Sprintf("r_%d", hz), cause(ErrMissingColumn, "x_%d and r_%d go together", hz, hz))
+	}
+	gp, gc := fc.groundPhase >= 0 || fc.groundAmp >= 0, fc.groundX >= 0 || fc.groundR >= 0
+	if (gp && (fc.groundPhase < 0 || fc.groundAmp < 0)) || (gc && (fc.groundX < 0 || fc.groundR < 0)) || (gp && gc) {
+		return false, herr(fmt.Sprintf("ground_phase_%d", hz), cause(ErrHeader, "ground reading at %d Hz needs ground_phase/ground_amp or ground_x/ground_r", hz))
+	}
+	return gp || gc, nil
 }
 
 // parseNumber reads one numeric cell; the caller names the column.

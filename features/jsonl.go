@@ -72,96 +72,111 @@ func (j *jsonlSource) row(b []byte) (Dig, error) {
 		return Dig{}, perr(dup, fmt.Errorf("%w JSON: key %q appears twice in the object; keep one", ErrSyntax, dup))
 	}
 	d := Dig{Line: j.line, DepthCM: math.NaN(), DisplayID: math.NaN()}
-	var readings, ground []jsonReading
-	haveReadings := false
+	var rs rowReadings
 	for _, key := range sortedKeys(obj) {
-		raw := obj[key]
 		name := strings.ToLower(key)
-		var err error
-		switch name {
-		case "dig":
-			d.ID, err = jsonText(raw, true)
-		case "site":
-			d.Site, err = jsonText(raw, false)
-		case "date":
-			if d.Date, err = jsonText(raw, false); err == nil && d.Date != "" {
-				d.Date = j.rd.date(d.Date, j.line)
-			}
-		case "material":
-			d.Material, err = jsonText(raw, false)
-			d.Material = normaliseLabel(d.Material)
-			if err == nil {
-				err = checkLabel(d.Material)
-			}
-		case "shape":
-			d.Shape, err = jsonText(raw, false)
-			d.Shape = normaliseLabel(d.Shape)
-			if err == nil {
-				err = checkLabel(d.Shape)
-			}
-		case "depth_cm":
-			if d.DepthCM, err = jsonNumber(raw); err == nil && d.DepthCM < 0 {
-				err = cause(ErrNegative, "got %g", d.DepthCM)
-			}
-		case "display_id":
-			d.DisplayID, err = jsonNumber(raw)
-			if !j.rd.displayCol && j.rd.kept == 0 {
-				j.rd.displayCol = true
-			}
-		case "readings":
-			haveReadings = true
-			err = json.Unmarshal(raw, &readings)
-		case "ground":
-			if string(raw) != "null" {
-				err = json.Unmarshal(raw, &ground)
-			}
-		default:
-			if !j.ignored[name] {
-				j.ignored[name] = true
-				j.rd.ignored = append(j.rd.ignored, name)
-			}
-		}
-		if err != nil {
+		if err := j.field(&d, &rs, name, obj[key]); err != nil {
 			if _, ok := err.(*json.UnmarshalTypeError); ok {
 				err = fmt.Errorf("%w JSON: %w", ErrSyntax, err)
 			}
 			return d, perr(name, err)
 		}
 	}
-	if (!haveReadings || len(readings) == 0) && j.rd.opts.DisplayIDOnly && !math.IsNaN(d.DisplayID) && len(j.rd.freqs) == 0 {
-		// A log of display IDs only: its first row sets an empty set.
-		j.rd.freqs = []int{}
-		return d, nil
+	return d, j.attachReadings(&d, rs, perr)
+}
+
+// rowReadings are a row's reading arrays as given, before conversion.
+type rowReadings struct{ readings, ground []jsonReading }
+
+// field sets the dig's field of one key of its object; readings go to rs,
+// and an unknown key is noted once as ignored.
+func (j *jsonlSource) field(d *Dig, rs *rowReadings, name string, raw json.RawMessage) error {
+	var err error
+	switch name {
+	case "dig":
+		d.ID, err = jsonText(raw, true)
+	case "site":
+		d.Site, err = jsonText(raw, false)
+	case "date":
+		if d.Date, err = jsonText(raw, false); err == nil && d.Date != "" {
+			d.Date = j.rd.date(d.Date, j.line)
+		}
+	case "material", "shape":
+		var label string
+		if label, err = jsonText(raw, false); err == nil {
+			label = normaliseLabel(label)
+			err = checkLabel(label)
+		}
+		if name == "material" {
+			d.Material = label
+		} else {
+			d.Shape = label
+		}
+	case "depth_cm":
+		if d.DepthCM, err = jsonNumber(raw); err == nil && d.DepthCM < 0 {
+			err = cause(ErrNegative, "got %g", d.DepthCM)
+		}
+	case "display_id":
+		d.DisplayID, err = jsonNumber(raw)
+		if !j.rd.displayCol && j.rd.kept == 0 {
+			j.rd.displayCol = true
+		}
+	case "readings":
+		err = json.Unmarshal(raw, &rs.readings)
+	case "ground":
+		if string(raw) != "null" {
+			err = json.Unmarshal(raw, &rs.ground)
+		}
+	default:
+		if !j.ignored[name] {
+			j.ignored[name] = true
+			j.rd.ignored = append(j.rd.ignored, name)
+		}
 	}
-	if !haveReadings || len(readings) == 0 {
-		return d, perr("readings", cause(ErrMissingColumn, "a row needs a readings array"))
+	return err
+}
+
+// attachReadings converts a row's readings and ground reading onto d and
+// checks their frequencies against the log's (set by its first row). A row
+// of a display ID alone, where display IDs only are allowed, sets an empty
+// frequency set.
+func (j *jsonlSource) attachReadings(d *Dig, rs rowReadings, perr func(string, error) error) error {
+	if len(rs.readings) == 0 && j.rd.opts.DisplayIDOnly && !math.IsNaN(d.DisplayID) && len(j.rd.freqs) == 0 {
+		j.rd.freqs = []int{}
+		return nil
+	}
+	if len(rs.readings) == 0 {
+		return perr("readings", cause(ErrMissingColumn, "a row needs a readings array"))
 	}
 	var err error
-	if d.Readings, err = j.convert("readings", readings, perr); err != nil {
-		return d, err
+	if d.Readings, err = j.convert("readings", rs.readings, perr); err != nil {
+		return err
 	}
-	freqs := make([]int, len(d.Readings))
-	for i, r := range d.Readings {
-		freqs[i] = r.Hz
-	}
+	freqs := hzOf(d.Readings)
 	if j.rd.freqs == nil {
 		j.rd.freqs = freqs
 	} else if !slices.Equal(freqs, j.rd.freqs) {
-		return d, perr("readings", cause(ErrFreqSet, "this row has %s, the log's first row %s", HzList(freqs), HzList(j.rd.freqs)))
+		return perr("readings", cause(ErrFreqSet, "this row has %s, the log's first row %s", HzList(freqs), HzList(j.rd.freqs)))
 	}
-	if len(ground) > 0 {
-		if d.Ground, err = j.convert("ground", ground, perr); err != nil {
-			return d, err
-		}
-		gf := make([]int, len(d.Ground))
-		for i, g := range d.Ground {
-			gf[i] = g.Hz
-		}
-		if !slices.Equal(gf, freqs) {
-			return d, perr("ground", cause(ErrFreqSet, "the ground reading has %s, the target's %s", HzList(gf), HzList(freqs)))
-		}
+	if len(rs.ground) == 0 {
+		return nil
 	}
-	return d, nil
+	if d.Ground, err = j.convert("ground", rs.ground, perr); err != nil {
+		return err
+	}
+	if gf := hzOf(d.Ground); !slices.Equal(gf, freqs) {
+		return perr("ground", cause(ErrFreqSet, "the ground reading has %s, the target's %s", HzList(gf), HzList(freqs)))
+	}
+	return nil
+}
+
+// hzOf lists the frequencies of readings, in order.
+func hzOf(rs []Reading) []int {
+	hz := make([]int, len(rs))
+	for i, r := range rs {
+		hz[i] = r.Hz
+	}
+	return hz
 }
 
 // convert checks an array of readings and sorts it by frequency.

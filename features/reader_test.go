@@ -260,3 +260,17 @@ func readFile(name string, opts ReadOptions) (*Log, error) {
 	defer f.Close()
 	return ReadLog(f, name, opts)
 }
+
+// TestHeaderFaultsInFrequencyOrder: of several faulty frequencies the
+// lowest is reported, every time (the columns were once checked in map
+// order, so the message could change from run to run).
+func TestHeaderFaultsInFrequencyOrder(t *testing.T) {
+	cells := []string{"phase_21700", "phase_9700", "phase_4300", "amp_36300"}
+	for range 20 {
+		_, err := parseHeader("h.csv", 1, cells, false)
+		var pe *ParseError
+		if !errors.As(err, &pe) || pe.Column != "amp_4300" || !errors.Is(err, ErrMissingColumn) {
+			t.Fatalf("got %v, want the 4300 Hz pair reported first (amp_4300: missing)", err)
+		}
+	}
+}
