@@ -67,7 +67,10 @@ func newCSVSource(r io.Reader, rd *Reader) (*csvSource, error) {
 		return nil, err
 	}
 	src.s = s
-	rd.freqs, rd.ignored = s.freqs, s.ignored
+	rd.freqs = s.freqs
+	for _, name := range s.ignored {
+		rd.ignore(name)
+	}
 	_, rd.displayCol = s.index[colDisplayID]
 	return src, nil
 }

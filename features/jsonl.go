@@ -130,7 +130,7 @@ func (j *jsonlSource) field(d *Dig, rs *rowReadings, name string, raw json.RawMe
 	default:
 		if !j.ignored[name] {
 			j.ignored[name] = true
-			j.rd.ignored = append(j.rd.ignored, name)
+			j.rd.ignore(name)
 		}
 	}
 	return err

@@ -80,6 +80,16 @@ type Reader struct {
 	badDates, ambiguousDates int
 }
 
+// ignore keeps a column out of the model, and notes it when its name
+// suggests the detector's own number under another name.
+func (rd *Reader) ignore(name string) {
+	rd.ignored = append(rd.ignored, name)
+	switch strings.ReplaceAll(strings.ReplaceAll(name, " ", ""), "_", "") {
+	case "id", "tid", "targetid", "targetnumber", "number", "reading":
+		rd.Notes = append(rd.Notes, fmt.Sprintf("column %q was kept out of the model; if it is the number your detector showed, name it display_id", name))
+	}
+}
+
 // date reads a date cell. An unreadable date is not fatal, since dates are
 // optional: the dig is kept without it, and a note says so (for the first
 // few). An ambiguous one is read by ReadOptions.DateOrder, said once.

@@ -274,3 +274,21 @@ func TestHeaderFaultsInFrequencyOrder(t *testing.T) {
 		}
 	}
 }
+
+// TestIgnoredNumberColumnNoted: a column kept out of the model whose name
+// suggests the detector's own number ("Target ID") gets a note naming
+// display_id, in CSV and JSON Lines alike; another ignored column does not.
+func TestIgnoredNumberColumnNoted(t *testing.T) {
+	for name, text := range map[string]string{
+		"a.csv":   "Target ID,finder,phase_8k,amp_8k,material,shape\n61,K,150,0.8,lead,ball\n",
+		"a.jsonl": `{"target id":61,"finder":"K","readings":[{"hz":8000,"phase":150,"amp":0.8}],"material":"lead","shape":"ball"}` + "\n",
+	} {
+		log, err := ReadLog(strings.NewReader(text), name, ReadOptions{})
+		if err != nil {
+			t.Fatalf("%s: %v", name, err)
+		}
+		if len(log.Notes) != 1 || !strings.Contains(log.Notes[0], `column "target id"`) || !strings.Contains(log.Notes[0], "name it display_id") {
+			t.Errorf("%s: notes %q, want one naming display_id for the target id column", name, log.Notes)
+		}
+	}
+}

@@ -1,12 +1,10 @@
 package main
 
 import (
-	"bytes"
 	"context"
 	"fmt"
 	"os"
 	"path/filepath"
-	"strings"
 
 	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/classify/overlap"
@@ -100,36 +98,9 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 
 	// 3. A model, and new readings.
 	fmt.Fprintf(w, "\n== 3. New readings, classified by a model of the whole history\n\n")
-	bar := g.progress(opts.trees+train.ScreenTrees(log, train.ScreenOptions{}), "growing trees", false)
-	step := func(int) { bar.Step(1) }
-	bundle, err := train.TrainBundle(ctx, log, spec, train.TrainOptions{Label: features.LabelBoth, Version: version,
-		Forest: train.Options{Trees: opts.trees, Seed: opts.seed, Progress: step}, Screen: train.ScreenOptions{Progress: step}})
-	bar.Done()
-	if err != nil {
-		return err
-	}
-	classify.Prepare(bundle)
-	fmt.Fprint(w, textui.Wrap(classify.HazardStatusOf(bundle).Text+" The readings below have no depth, so the screen judges them by phase and amplitude and says at most \"cannot be ruled out\"; the history's own ordnance digs give the \"likely\" tier.", 78, ""))
-	fmt.Fprintln(w)
 	modelPath := filepath.Join(opts.dir, "demo.spade")
-	if err := bundle.SaveContext(ctx, modelPath); err != nil {
-		return fmt.Errorf("demo: %w", err)
-	}
-	readings, err := features.ReadLog(bytes.NewReader(datasets.DemoReadings), datasets.DemoReadingsName, features.ReadOptions{})
-	if err != nil {
+	if err := demoReadings(ctx, g, w, log, vals, opts, modelPath); err != nil {
 		return err
-	}
-	notes := datasets.DemoReadingNotes()
-	c := classify.New(bundle, vals)
-	for i := range readings.Digs {
-		r, err := c.Classify(&readings.Digs[i])
-		if err != nil {
-			return err
-		}
-		classify.WriteTable(w, r, 4)
-		if n := notes[r.Dig]; n != "" {
-			fmt.Fprint(w, textui.Wrap("(what it really was: "+strings.TrimPrefix(n, "simulated: ")+")", 78, "     "))
-		}
 	}
 
 	// 4. Pictures.

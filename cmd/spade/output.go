@@ -4,11 +4,13 @@ import (
 	"bufio"
 	"context"
 	"errors"
+	"fmt"
 	"io"
 
 	"github.com/spade-detect/spade/classify"
 	"github.com/spade-detect/spade/internal/atomicfile"
 	"github.com/spade-detect/spade/internal/cli"
+	"github.com/spade-detect/spade/internal/textui"
 )
 
 // writeOutput sends output to standard output for "-" and otherwise to a
@@ -56,4 +58,17 @@ func newResultWriter(w io.Writer, format string, classes []string, top int, warn
 		return classify.NewCSVWriter(w, classes, warnings)
 	}
 	return classify.NewTableWriter(w, top, warnings)
+}
+
+// note prints a remark on stderr unless --quiet.
+func (g *globalOptions) note(format string, args ...any) {
+	if !g.quiet {
+		fmt.Fprintf(g.stderr, format+"\n", args...)
+	}
+}
+
+// progress is a bar on stderr while work runs, or nothing when stderr is
+// not a terminal, under --quiet, or when machine output (JSON) is asked for.
+func (g *globalOptions) progress(total int, what string, machineOutput bool) *textui.Progress {
+	return textui.NewProgress(g.stderr, total, what, g.isTerminal && !g.quiet && !machineOutput)
 }

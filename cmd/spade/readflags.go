@@ -1,6 +1,9 @@
 package main
 
 import (
+	"fmt"
+	"io"
+	"os"
 	"strings"
 
 	"github.com/spade-detect/spade/features"
@@ -62,12 +65,6 @@ func (g *globalOptions) reportRead(bad []*features.ParseError, ignored []string)
 	if len(ignored) > 0 && g.verbose {
 		g.note("columns kept out of the model: %s", strings.Join(ignored, ", "))
 	}
-	for _, c := range ignored {
-		switch strings.ReplaceAll(strings.ReplaceAll(c, " ", ""), "_", "") {
-		case "id", "tid", "targetid", "targetnumber", "number", "reading":
-			g.note("note: column %q was kept out of the model; if it is the number your detector showed, name it display_id", c)
-		}
-	}
 }
 
 // labelledLogFlags are the flags of the commands that learn from a
@@ -98,4 +95,16 @@ func (o *labelledLogFlags) read(g *globalOptions, name string) (*features.Log, f
 	ro.Require, ro.SkipUnlabelled, ro.DisplayIDOnly = kind, o.skipUnlabelled, o.displayIDOnly
 	log, err := g.readLog(name, ro)
 	return log, kind, err
+}
+
+// openLog opens a log by name; "-" is the command's standard input.
+func openLog(g *globalOptions, name string) (io.ReadCloser, error) {
+	if name == "-" {
+		return io.NopCloser(g.stdin), nil
+	}
+	f, err := os.Open(name)
+	if err != nil {
+		return nil, fmt.Errorf("cannot read %s: %w", name, features.PathCause(err))
+	}
+	return f, nil
 }

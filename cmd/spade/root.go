@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"io"
 	"os"
-	"runtime/debug"
 	"strings"
 	"syscall"
 
@@ -50,20 +49,7 @@ type globalOptions struct {
 	ctx context.Context
 }
 
-func versionString() string {
-	c := commit
-	if c == "" {
-		c = "unknown"
-		if info, ok := debug.ReadBuildInfo(); ok {
-			for _, s := range info.Settings {
-				if s.Key == "vcs.revision" && len(s.Value) >= 7 {
-					c = s.Value[:12]
-				}
-			}
-		}
-	}
-	return fmt.Sprintf("%s (commit %s)", version, c)
-}
+func versionString() string { return cli.Version(version, commit) }
 
 // usageError marks a mistake in the command line.
 type usageError = cli.UsageError
