@@ -202,7 +202,14 @@ func sameHz(rs []Reading, freqs []int) bool {
 }
 
 // PhaseSlope is the least-squares slope of phase against log10 frequency, in
-// degrees per decade.
+// degrees per decade: with x = log10 f and y the phase,
+//
+//	slope = Σ (x - x̄)(y - ȳ) / Σ (x - x̄)²
+//
+// (ordinary least squares; e.g. Draper & Smith, Applied Regression Analysis,
+// 3rd ed. 1998, §1.2, cited from memory). It is gonum's
+// stat.LinearRegression written out, so that extraction allocates nothing
+// per reading; the tests compare the two. 0 for a single frequency.
 func PhaseSlope(rs []Reading) float64 {
 	var mx, my float64
 	n := float64(len(rs))

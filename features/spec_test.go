@@ -7,7 +7,39 @@ import (
 	"testing"
 
 	"gonum.org/v1/gonum/floats/scalar"
+	"gonum.org/v1/gonum/stat"
 )
+
+// TestPhaseSlopeIsGonumsRegression: the written-out slope equals gonum's
+// stat.LinearRegression on the same points within 1e-12 relative, on the
+// demo's four frequencies and on an uneven five, and is 0 for one.
+func TestPhaseSlopeIsGonumsRegression(t *testing.T) {
+	for _, c := range []struct {
+		hz     []int
+		phases []float64
+	}{
+		{[]int{4300, 9700, 21700, 36300}, []float64{111.8, 129.0, 147.5, 163.2}},
+		{[]int{1000, 3100, 8000, 16100, 40000}, []float64{12, 30.5, 29.0, 71.25, 178}},
+	} {
+		var rs []Reading
+		var x []float64
+		for i, hz := range c.hz {
+			rs = append(rs, Reading{Hz: hz, X: math.Cos(c.phases[i] * math.Pi / 180), R: math.Sin(c.phases[i] * math.Pi / 180)})
+			x = append(x, math.Log10(float64(hz)))
+		}
+		var y []float64
+		for _, r := range rs {
+			y = append(y, r.Phase())
+		}
+		_, want := stat.LinearRegression(x, y, nil, false)
+		if got := PhaseSlope(rs); !scalar.EqualWithinRel(got, want, 1e-12) {
+			t.Errorf("%v Hz: slope %.15g, gonum's %.15g", c.hz, got, want)
+		}
+	}
+	if got := PhaseSlope([]Reading{{Hz: 9700, X: 0.1, R: 1}}); got != 0 {
+		t.Errorf("one frequency: slope %g, want 0", got)
+	}
+}
 
 func TestSpecNames(t *testing.T) {
 	s := NewSpec([]int{5000, 10000, 20000}, true)

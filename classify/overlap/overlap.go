@@ -269,20 +269,25 @@ func resolve(start, end int, bins []*Bin, classes []string, keeper, hazard []boo
 	return res
 }
 
-// niceWidth rounds a raw bin width to 1, 2 or 5 times a power of ten (at
-// least 1 on a whole-number axis).
-func niceWidth(raw float64, integral bool) float64 {
+// NiceStep rounds raw up to 1, 2 or 5 times a power of ten, the steps a
+// reader counts in (Heckbert, "Nice numbers for graph labels", Graphics
+// Gems, 1990, cited from memory); 1 for a raw that is not positive.
+func NiceStep(raw float64) float64 {
 	if raw <= 0 || math.IsNaN(raw) {
 		return 1
 	}
 	p := math.Pow(10, math.Floor(math.Log10(raw)))
-	w := 10 * p
 	for _, m := range []float64{1, 2, 5} {
 		if raw <= m*p {
-			w = m * p
-			break
+			return m * p
 		}
 	}
+	return 10 * p
+}
+
+// niceWidth is a bin width of NiceStep, at least 1 on a whole-number axis.
+func niceWidth(raw float64, integral bool) float64 {
+	w := NiceStep(raw)
 	if integral && w < 1 {
 		w = 1
 	}

@@ -129,19 +129,12 @@ func Overlap(w io.Writer, format string, r *overlap.Result, unit string, first [
 
 func isWhole(v float64) bool { return v == float64(int64(v)) }
 
-// stepTicks labels the axis every step units, rounded to 1, 2 or 5 times a
-// power of ten.
+// stepTicks labels the axis every step units, rounded up to a nice step
+// (overlap.NiceStep).
 type stepTicks float64
 
 func (s stepTicks) Ticks(lo, hi float64) []plot.Tick {
-	p := math.Pow(10, math.Floor(math.Log10(float64(s))))
-	step := 10 * p
-	for _, m := range []float64{1, 2, 5} {
-		if float64(s) <= m*p {
-			step = m * p
-			break
-		}
-	}
+	step := overlap.NiceStep(float64(s))
 	var ticks []plot.Tick
 	for v := math.Ceil(lo/step) * step; v <= hi; v += step {
 		ticks = append(ticks, plot.Tick{Value: v, Label: strconv.FormatFloat(v, 'g', -1, 64)})
