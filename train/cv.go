@@ -244,13 +244,16 @@ func CrossValidate(ctx context.Context, ds *Dataset, o EvalOptions) (*Evaluation
 		ev.LearningVerdict = learningVerdict(ev.Learning)
 	}
 	if len(o.Keepers) > 0 {
-		ev.DigSaving = digSaving(ds, o.Keepers, o.Hazards, ev.Probs, ev.BaselineProbs)
+		ev.DigSaving = SavingCurves(ds, o.Keepers, o.Hazards, ev.Probs, ev.BaselineProbs, SavingLevels)
 	}
 	return ev, nil
 }
 
-// digSaving builds the model's and the baseline's curves on the same rows.
-func digSaving(ds *Dataset, keepers, hazards []string, model, base [][]float64) *DigSaving {
+// SavingCurves builds the model's and the baseline's dig-saving curves on
+// the same rows of ds, from their held-out probabilities (model nil: the
+// baseline's alone), at the keeper shares levels (SavingLevels for the
+// report's figures; a fine grid to draw the whole curve).
+func SavingCurves(ds *Dataset, keepers, hazards []string, model, base [][]float64, levels []float64) *DigSaving {
 	K := len(ds.Classes)
 	isKeeper, isHazard := make([]bool, K), make([]bool, K)
 	for k, c := range ds.Classes {
@@ -283,9 +286,9 @@ func digSaving(ds *Dataset, keepers, hazards []string, model, base [][]float64) 
 		bs[i] = KeeperScore(base[i], isKeeper)
 	}
 	if model != nil {
-		d.Model = SavingCurve(ms, keeperRow, trashRow, SavingLevels)
+		d.Model = SavingCurve(ms, keeperRow, trashRow, levels)
 	}
-	d.Baseline = SavingCurve(bs, keeperRow, trashRow, SavingLevels)
+	d.Baseline = SavingCurve(bs, keeperRow, trashRow, levels)
 	return d
 }
 

@@ -12,7 +12,7 @@ import (
 
 // Options for Analyse.
 type Options struct {
-	Width       float64  // bin width in the axis's units; 0 chooses one
+	Width       float64  // bin width in the axis's units; 0 chooses one (AutoBins)
 	MinTopShare float64  // a bin is ambiguous below this top-class share (default 0.8)
 	MaxEntropy  float64  // or above this entropy in bits (default 1)
 	Keepers     []string // classes worth digging
@@ -114,7 +114,7 @@ func Analyse(by string, axis []float64, classes []string, y []int32, probs [][]f
 	}
 	w := o.Width
 	if w <= 0 {
-		w = niceWidth((hi-lo)/math.Max(float64(len(axis))/30, 1), integral)
+		w = niceWidth((hi-lo)/AutoBins(len(axis)), integral)
 	}
 	if (hi-lo)/w > 100000 {
 		return nil, fmt.Errorf("overlap: bin width %g gives more than 100000 bins", w)
@@ -267,6 +267,19 @@ func resolve(start, end int, bins []*Bin, classes []string, keeper, hazard []boo
 		res.TrashSkipped = &v
 	}
 	return res
+}
+
+// AutoBins is how many bins the range of n digs is cut into when no width
+// is given: about 30 digs a bin, but at least 10 bins where that leaves 5
+// digs a bin or more, so that a small log is not one bar; a log of under
+// 50 digs gets a bin per 5 digs. The width is then rounded up to a
+// NiceStep, so there may be fewer.
+func AutoBins(n int) float64 {
+	bins := float64(n) / 30
+	if bins < 10 {
+		bins = min(10, max(1, float64(n)/5))
+	}
+	return bins
 }
 
 // NiceStep rounds raw up to 1, 2 or 5 times a power of ten, the steps a

@@ -152,3 +152,27 @@ func TestNiceWidth(t *testing.T) {
 		t.Errorf("continuous 0.3 -> %v", got)
 	}
 }
+
+// TestSmallLogIsNotOneBar: 50 digs over display IDs 0-99 were once binned
+// 100 wide, one bar (issue 17). Now they get bins of 10, and a long log
+// keeps about 30 digs a bin (1,500 digs over 0-99: 50 bins, width 2).
+func TestSmallLogIsNotOneBar(t *testing.T) {
+	for _, c := range []struct {
+		n         int
+		wantWidth float64
+	}{{50, 10}, {20, 50}, {300, 10}, {1500, 2}} {
+		var axis []float64
+		var y []int32
+		for i := range c.n {
+			axis = append(axis, float64(i*99/(c.n-1)))
+			y = append(y, int32(i%2))
+		}
+		r, err := Analyse("display_id", axis, classes, y, nil, Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if r.Width != c.wantWidth {
+			t.Errorf("%d digs over 0-99: width %g, want %g", c.n, r.Width, c.wantWidth)
+		}
+	}
+}

@@ -14,9 +14,10 @@ import (
 
 // Reliability draws the reliability diagram: for predictions whose top
 // probability fell in each bin, the mean probability against the share that
-// were right. On the diagonal, "70 %" means right seven times in ten.
+// were right. On the diagonal, "70 %" means right seven times in ten. The
+// legend stands beside the square.
 func Reliability(w io.Writer, format string, bins []train.ReliabilityBin) error {
-	p := newPlot("When spade says p, how often is it right? (held-out digs)", "top-class probability", "share right")
+	p := newPlot("When spade says p, how often is it right? Held-out digs", "spade's probability for its top class", "share of those digs it got right")
 	diag, err := plotter.NewLine(plotter.XYs{{X: 0, Y: 0}, {X: 1, Y: 1}})
 	if err != nil {
 		return err
@@ -34,13 +35,14 @@ func Reliability(w io.Writer, format string, bins []train.ReliabilityBin) error 
 		labels.Labels = append(labels.Labels, fmt.Sprintf(" %d", b.Count))
 	}
 	p.Add(diag)
+	leg := newLegend()
 	if len(pts) > 0 {
 		l, s, err := plotter.NewLinePoints(pts)
 		if err != nil {
 			return err
 		}
-		l.LineStyle.Color = okabeIto[4]
-		s.Color = okabeIto[4]
+		l.LineStyle.Color = spadeBlue
+		s.Color = spadeBlue
 		s.Shape = draw.CircleGlyph{}
 		s.Radius = vg.Points(3.5)
 		lb, err := plotter.NewLabels(labels)
@@ -51,13 +53,12 @@ func Reliability(w io.Writer, format string, bins []train.ReliabilityBin) error 
 			lb.TextStyle[i].Font.Size = 8
 		}
 		p.Add(l, s, lb)
-		p.Legend.Add("spade (numbers: digs in the bin)", l, s)
-		p.Legend.Add("perfectly calibrated", diag)
-		p.Legend.Top = true
-		p.Legend.Left = true
+		leg.Add("spade", l, s)
+		leg.Add("(numbers: digs in the bin)")
 	}
+	leg.Add("right as often as it says", diag)
 	p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = 0, 1, 0, 1
-	return render(w, format, 6*vg.Inch, 6*vg.Inch, func(dc draw.Canvas) { p.Draw(dc) })
+	return render(w, format, 8.5*vg.Inch, 6*vg.Inch, func(dc draw.Canvas) { p.Draw(legendColumn(dc, leg)) })
 }
 
 // confusionGrid is the confusion matrix row-normalised: each true class's
@@ -107,7 +108,7 @@ func Confusion(w io.Writer, format string, classes []string, cm map[string]map[s
 			}
 		}
 	}
-	p := newPlot("What is each class taken for? Held-out digs, rows sum to 1", "called (predicted class)", "what it was (true class)")
+	p := newPlot("What is each class taken for? Numbers: held-out digs; colour: share of the row", "what spade called it", "what came out of the ground")
 	hm := plotter.NewHeatMap(g, blues{})
 	hm.Min, hm.Max = 0, 1
 	lb, err := plotter.NewLabels(labels)

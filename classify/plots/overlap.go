@@ -1,6 +1,7 @@
 package plots
 
 import (
+	"fmt"
 	"image/color"
 	"io"
 	"math"
@@ -16,97 +17,27 @@ import (
 )
 
 // Overlap draws class shares per bin as stacked bars over the single-number
-// axis, with the ambiguous ranges shaded, and below it the entropy per bin
-// in bits. unit names the axis, e.g. "display ID" or "phase at 10 kHz (°)".
-// Colours go first to the classes in first (hazards, then keepers), then to
-// the commonest others, up to ten; the rest are drawn as "other trash".
-func Overlap(w io.Writer, format string, r *overlap.Result, unit string, first []string) error {
-	total := map[string]int{}
+// axis, with the ambiguous ranges marked, and below it the entropy per bin
+// in bits. unit names the axis, e.g. "display ID" or "phase at 9700 Hz
+// (degrees)". Each class has its colour (ClassColours: hazards in the
+// reserved red, the keepers and then the commonest trash named), stacked
+// in one order in every bin, and the legend stands beside the panels.
+func Overlap(w io.Writer, format string, r *overlap.Result, unit string, roles Roles) error {
+	counts := map[string]int{}
 	for _, b := range r.Bins {
 		for _, c := range b.Classes {
-			total[c.Class] += c.Digs
+			counts[c.Class] += c.Digs
 		}
 	}
-	names := make([]string, 0, len(total))
-	for c := range total {
-		names = append(names, c)
-	}
-	rank := func(c string) int {
-		if i := slices.Index(first, c); i >= 0 {
-			return i
-		}
-		return len(first)
-	}
-	sort.Slice(names, func(i, j int) bool {
-		if ri, rj := rank(names[i]), rank(names[j]); ri != rj {
-			return ri < rj
-		}
-		if total[names[i]] != total[names[j]] {
-			return total[names[i]] > total[names[j]]
-		}
-		return names[i] < names[j]
-	})
-	colour := map[string]color.Color{}
-	for i, c := range names {
-		if i < len(tolMuted) {
-			colour[c] = tolMuted[i]
-		}
-	}
-	top := newPlot("Which "+unit+" values could be anything? Class shares per bin (dark strip: ambiguous range)", "", "share of digs")
-	bottom := newPlot("How mixed is each bin? Entropy of the class shares", unit, "entropy (bits)")
-	shade, shadeLow := &rects{}, &rects{}
-	var maxH float64
-	for _, b := range r.Bins {
-		maxH = max(maxH, b.Entropy)
-	}
-	for _, rg := range r.Ranges {
-		hi := rg.To
-		if hi == rg.From || isWhole(r.Width) {
-			hi = rg.To + 1
-		}
-		if !isWhole(r.Width) {
-			hi = rg.To
-		}
-		shade.add(rg.From, hi, 1.03, 1.09, stripGrey)
-		shadeLow.add(rg.From, hi, 0, max(maxH*1.05, 1), shadeGrey)
-	}
-	bars := &rects{}
-	gap := r.Width * 0.08
-	var line plotter.XYs
-	for _, b := range r.Bins {
-		y := 0.0
-		var other float64
-		for _, c := range b.Classes {
-			if col, ok := colour[c.Class]; ok {
-				bars.add(b.From+gap, b.From+r.Width-gap, y, y+c.Share, col)
-				y += c.Share
-			} else {
-				other += c.Share
-			}
-		}
-		if other > 0 {
-			bars.add(b.From+gap, b.From+r.Width-gap, y, y+other, otherGrey)
-		}
-		line = append(line, plotter.XY{X: b.From + r.Width/2, Y: b.Entropy})
-	}
+	colours := ClassColours(counts, roles)
+	order := stackOrder(counts, colours, roles)
+	top := newPlot(fmt.Sprintf("What came out of the ground at each %s: share of digs by class, bins of %g", unit, r.Width), "", "share of digs")
+	bottom := newPlot("How mixed is each bin? Entropy of its class shares, in bits (0: one class only)", unit, "entropy (bits)")
+	bars, shade, shadeLow, line := overlapMarks(r, order, colours)
 	top.Add(shade, bars)
-	// Headroom above the bars for the strip and the legend; ticks on 0-1.
-	top.Y.Min, top.Y.Max = 0, 1.75
+	// Headroom above the bars for the ambiguous-range strip.
+	top.Y.Min, top.Y.Max = 0, 1.1
 	top.Y.Tick.Marker = plot.ConstantTicks{{Value: 0, Label: "0"}, {Value: 0.25}, {Value: 0.5, Label: "0.5"}, {Value: 0.75}, {Value: 1, Label: "1"}}
-	if len(r.Ranges) > 0 {
-		top.Legend.Add("ambiguous range", swatch{stripGrey})
-	}
-	for _, c := range names {
-		if col, ok := colour[c]; ok {
-			top.Legend.Add(c, swatch{col})
-		}
-	}
-	if len(names) > len(tolMuted) {
-		top.Legend.Add("other trash", swatch{otherGrey})
-	}
-	top.Legend.Top = true
-	top.Legend.Left = true
-	top.Legend.TextStyle.Font.Size = 8
 	l, err := plotter.NewLine(line)
 	if err != nil {
 		return err
@@ -115,11 +46,37 @@ func Overlap(w io.Writer, format string, r *overlap.Result, unit string, first [
 	l.LineStyle.Color = color.Black
 	bottom.Add(shadeLow, l)
 	bottom.Y.Min = 0
+	bottom.Y.Tick.Marker = stepTicks(0.5)
 	for _, p := range []*plot.Plot{top, bottom} {
 		p.X.Min, p.X.Max = r.Bins[0].From, r.Bins[len(r.Bins)-1].From+r.Width
-		p.X.Tick.Marker = stepTicks(r.Width * 5)
+		p.X.Tick.Marker = tensTicks{}
 	}
-	return render(w, format, 10*vg.Inch, 7*vg.Inch, func(dc draw.Canvas) {
+	leg := newLegend()
+	if len(r.Ranges) > 0 {
+		leg.Add("ambiguous range (strip above)", swatch{stripGrey})
+		leg.Add("ambiguous range (band below)", swatch{shadeGrey})
+	}
+	pooled, pooledKeeper := 0, false
+	for _, c := range order {
+		if _, ok := colours[c]; !ok {
+			pooled++
+			pooledKeeper = pooledKeeper || slices.Contains(roles.Keepers, c)
+		}
+	}
+	// The legend reads down as the stack reads down: its top class first.
+	switch {
+	case pooled > 0 && pooledKeeper:
+		leg.Add(fmt.Sprintf("%d more classes", pooled), swatch{otherGrey})
+	case pooled > 0:
+		leg.Add(fmt.Sprintf("other trash (%d least dug classes)", pooled), swatch{otherGrey})
+	}
+	for i := len(order) - 1; i >= 0; i-- {
+		if col, ok := colours[order[i]]; ok {
+			leg.Add(order[i], swatch{col})
+		}
+	}
+	return render(w, format, 12*vg.Inch, 7*vg.Inch, func(dc draw.Canvas) {
+		dc = legendColumn(dc, leg)
 		tiles := draw.Tiles{Rows: 2, Cols: 1, PadTop: vg.Points(4), PadBottom: vg.Points(4), PadLeft: vg.Points(4), PadRight: vg.Points(8), PadY: vg.Points(12)}
 		canvases := plot.Align([][]*plot.Plot{{top}, {bottom}}, tiles, dc)
 		top.Draw(canvases[0][0])
@@ -127,7 +84,104 @@ func Overlap(w io.Writer, format string, r *overlap.Result, unit string, first [
 	})
 }
 
-func isWhole(v float64) bool { return v == float64(int64(v)) }
+// stackOrder is the order classes are stacked in, from the bottom:
+// hazards, keepers, then the rest by count; classes without a colour
+// (drawn as one grey "other") last.
+func stackOrder(counts map[string]int, colours map[string]color.Color, roles Roles) []string {
+	rank := func(c string) int {
+		switch {
+		case slices.Contains(roles.Hazards, c):
+			return 0
+		case slices.Contains(roles.Keepers, c):
+			return 1
+		}
+		if _, ok := colours[c]; ok {
+			return 2
+		}
+		return 3
+	}
+	names := make([]string, 0, len(counts))
+	for c := range counts {
+		names = append(names, c)
+	}
+	sort.Slice(names, func(i, j int) bool {
+		if ri, rj := rank(names[i]), rank(names[j]); ri != rj {
+			return ri < rj
+		}
+		if counts[names[i]] != counts[names[j]] {
+			return counts[names[i]] > counts[names[j]]
+		}
+		return names[i] < names[j]
+	})
+	return names
+}
+
+// overlapMarks are the stacked bars, the ambiguous ranges' strip (top
+// panel) and band (bottom panel), and the entropy line.
+func overlapMarks(r *overlap.Result, order []string, colours map[string]color.Color) (bars, shade, shadeLow *rects, line plotter.XYs) {
+	bars, shade, shadeLow = &rects{}, &rects{}, &rects{}
+	var maxH float64
+	for _, b := range r.Bins {
+		maxH = max(maxH, b.Entropy)
+	}
+	// A whole-number axis's bins have inclusive upper bounds: "60 to 61"
+	// covers [60, 62). A continuous axis's do not.
+	whole := r.Bins[0].To-r.Bins[0].From < r.Width
+	for _, rg := range r.Ranges {
+		hi := rg.To
+		if whole {
+			hi = rg.To + 1
+		}
+		shade.add(rg.From, hi, 1.03, 1.09, stripGrey)
+		shadeLow.add(rg.From, hi, 0, max(maxH*1.05, 1), shadeGrey)
+	}
+	gap := r.Width * 0.08
+	for _, b := range r.Bins {
+		share := map[string]float64{}
+		for _, c := range b.Classes {
+			share[c.Class] = c.Share
+		}
+		y, other := 0.0, 0.0
+		for _, c := range order {
+			if col, ok := colours[c]; ok {
+				bars.add(b.From+gap, b.From+r.Width-gap, y, y+share[c], col)
+				y += share[c]
+			} else {
+				other += share[c]
+			}
+		}
+		if other > 0 {
+			bars.add(b.From+gap, b.From+r.Width-gap, y, y+other, otherGrey)
+		}
+		line = append(line, plotter.XY{X: b.From + r.Width/2, Y: b.Entropy})
+	}
+	return bars, shade, shadeLow, line
+}
+
+// tensTicks marks the single-number axis every 10 units (a display ID or
+// degrees of phase), labelled every 10, or every 50 with unlabelled
+// marks between when the axis is long.
+type tensTicks struct{}
+
+func (tensTicks) Ticks(lo, hi float64) []plot.Tick {
+	label := 10.0
+	if (hi-lo)/10 > 24 {
+		label = 50
+	}
+	if (hi-lo)/10 > 120 {
+		// A wide axis in other units: nice steps, about ten of them.
+		return stepTicks((hi-lo)/10).Ticks(lo, hi)
+	}
+	var ticks []plot.Tick
+	for v := math.Ceil(lo/10) * 10; v <= hi; v += 10 {
+		t := plot.Tick{Value: v}
+		if math.Mod(v, label) == 0 {
+			t.Label = strconv.FormatFloat(v, 'f', -1, 64)
+		}
+		ticks = append(ticks, t)
+	}
+	return ticks
+}
 
 // stepTicks labels the axis every step units, rounded up to a nice step
 // (overlap.NiceStep).
@@ -140,84 +194,6 @@ func (s stepTicks) Ticks(lo, hi float64) []plot.Tick {
 		ticks = append(ticks, plot.Tick{Value: v, Label: strconv.FormatFloat(v, 'g', -1, 64)})
 	}
 	return ticks
-}
-
-// Spectra draws, per class, the phase against frequency: the median and the
-// inter-quartile band over that class's digs, in small multiples.
-// phases[i] holds dig i's phase at each of freqs; y its class index.
-func Spectra(w io.Writer, format string, freqs []int, classes []string, phases [][]float64, y []int32) error {
-	cols := 4
-	rows := (len(classes) + cols - 1) / cols
-	grid := make([][]*plot.Plot, rows)
-	for r := range grid {
-		grid[r] = make([]*plot.Plot, cols)
-	}
-	for k, class := range classes {
-		p := newPlot(class, "frequency (Hz)", "phase (°)")
-		p.Title.TextStyle.Font.Size = 10
-		p.X.Scale = plot.LogScale{}
-		p.X.Tick.Marker = freqTicks(freqs)
-		var med, q1, q3 plotter.XYs
-		for j, hz := range freqs {
-			var v []float64
-			for i, c := range y {
-				if int(c) == k {
-					v = append(v, phases[i][j])
-				}
-			}
-			if len(v) == 0 {
-				continue
-			}
-			slices.Sort(v)
-			x := float64(hz)
-			med = append(med, plotter.XY{X: x, Y: quantile(v, 0.5)})
-			q1 = append(q1, plotter.XY{X: x, Y: quantile(v, 0.25)})
-			q3 = append(q3, plotter.XY{X: x, Y: quantile(v, 0.75)})
-		}
-		if len(med) > 0 {
-			band := append(plotter.XYs{}, q1...)
-			for i := len(q3) - 1; i >= 0; i-- {
-				band = append(band, q3[i])
-			}
-			poly, err := plotter.NewPolygon(band)
-			if err != nil {
-				return err
-			}
-			poly.Color = color.NRGBA{0x56, 0xB4, 0xE9, 0x90} // not premultiplied: sky blue at about half opacity
-			poly.LineStyle.Width = 0
-			l, err := plotter.NewLine(med)
-			if err != nil {
-				return err
-			}
-			l.LineStyle.Width = vg.Points(1.5)
-			l.LineStyle.Color = okabeIto[4]
-			p.Add(poly, l)
-		}
-		p.Y.Min, p.Y.Max = -10, 190
-		grid[k/cols][k%cols] = p
-	}
-	for r := range grid {
-		for c := range grid[r] {
-			if grid[r][c] == nil {
-				grid[r][c] = blank()
-			}
-		}
-	}
-	return render(w, format, 12*vg.Inch, vg.Length(rows)*2.6*vg.Inch+0.6*vg.Inch, func(dc draw.Canvas) {
-		title := "What does each class read across frequency? Phase: median (line) and middle half (band) of your digs"
-		titleFont := plot.DefaultFont
-		titleFont.Size = vg.Points(12)
-		dc.FillText(draw.TextStyle{Color: color.Black, Font: titleFont, Handler: plot.DefaultTextHandler, XAlign: draw.XCenter},
-			vg.Point{X: (dc.Min.X + dc.Max.X) / 2, Y: dc.Max.Y - vg.Points(16)}, title)
-		dc.Max.Y -= vg.Points(24)
-		tiles := draw.Tiles{Rows: rows, Cols: cols, PadX: vg.Points(10), PadY: vg.Points(10), PadLeft: vg.Points(4), PadRight: vg.Points(8), PadBottom: vg.Points(4)}
-		canvases := plot.Align(grid, tiles, dc)
-		for r := range grid {
-			for c := range grid[r] {
-				grid[r][c].Draw(canvases[r][c])
-			}
-		}
-	})
 }
 
 // blank is an empty tile for the grid's last row.

@@ -3,6 +3,8 @@ package plots
 import (
 	"bytes"
 	"encoding/xml"
+	"fmt"
+	"image/color"
 	"image/png"
 	"io"
 	"math"
@@ -88,25 +90,37 @@ func TestPlotsDecode(t *testing.T) {
 	y := []int32{0, 1, 2, 0}
 	for _, format := range []string{"png", "svg"} {
 		var buf bytes.Buffer
-		if err := Overlap(&buf, format, sampleOverlap(t), "display ID", []string{"j/q"}); err != nil {
+		if err := Overlap(&buf, format, sampleOverlap(t), "display ID", Roles{Hazards: []string{"j/q"}, Keepers: []string{"a/x"}}); err != nil {
 			t.Fatal(err)
 		}
-		checkImage(t, "overlap."+format, format, buf.Bytes(), 10, 7)
+		checkImage(t, "overlap."+format, format, buf.Bytes(), 12, 7)
 		buf.Reset()
 		if err := Reliability(&buf, format, rel); err != nil {
 			t.Fatal(err)
 		}
-		checkImage(t, "reliability."+format, format, buf.Bytes(), 6, 6)
+		checkImage(t, "reliability."+format, format, buf.Bytes(), 8.5, 6)
 		buf.Reset()
 		if err := Confusion(&buf, format, classes, cm); err != nil {
 			t.Fatal(err)
 		}
 		checkImage(t, "confusion."+format, format, buf.Bytes(), 9, 8)
 		buf.Reset()
-		if err := Spectra(&buf, format, freqs, classes, phases, y); err != nil {
+		if err := Spectra(&buf, format, freqs, classes, phases, y, Roles{}); err != nil {
 			t.Fatal(err)
 		}
 		checkImage(t, "spectra."+format, format, buf.Bytes(), 12, 2.6+0.6)
+		buf.Reset()
+		learning := []train.LearningPoint{{Share: 0.25, Digs: 300, Accuracy: 0.75, LogLoss: 0.79}, {Share: 1, Digs: 1200, Accuracy: 0.8, LogLoss: 0.61}}
+		if err := Learning(&buf, format, learning, train.Metrics{Accuracy: 0.6, LogLoss: 1.16}); err != nil {
+			t.Fatal(err)
+		}
+		checkImage(t, "learning."+format, format, buf.Bytes(), 12, 4.5)
+		buf.Reset()
+		saving := []train.SavingPoint{{Keep: 0.95, TrashSkipped: 0.6, Keepers: 40, Trash: 100}, {Keep: 1, TrashSkipped: 0.2, Keepers: 40, Trash: 100}}
+		if err := DigSaving(&buf, format, saving, saving[1:], train.SavingLevels); err != nil {
+			t.Fatal(err)
+		}
+		checkImage(t, "dig-saving."+format, format, buf.Bytes(), 9, 6)
 	}
 }
 
@@ -118,5 +132,75 @@ func TestFormatOf(t *testing.T) {
 	}
 	if _, err := FormatOf("c.pdf"); err == nil {
 		t.Error("c.pdf accepted")
+	}
+}
+
+// TestClassColoursStable: a class's colour comes from its name, so it is
+// the same in two logs with other classes beside it (unless two classes
+// meet on one home colour); hazards always get the reserved red and no
+// other class does; with more classes than colours, the keepers and then
+// the commonest are named, and only the least dug are left grey (issue 17:
+// steel/cap was black in one log and aluminium/foil in another).
+func TestClassColoursStable(t *testing.T) {
+	roles := Roles{Keepers: []string{"gold/ring"}, Hazards: []string{"steel/ordnance"}}
+	a := ClassColours(map[string]int{"gold/ring": 5, "steel/cap": 40, "steel/ordnance": 2}, roles)
+	b := ClassColours(map[string]int{"gold/ring": 50, "steel/cap": 4, "aluminium/foil": 9, "steel/ordnance": 1, "iron/nail": 30}, roles)
+	if colourHome("steel/cap") != colourHome("aluminium/foil") && colourHome("steel/cap") != colourHome("iron/nail") && colourHome("steel/cap") != colourHome("gold/ring") {
+		if a["steel/cap"] != b["steel/cap"] {
+			t.Errorf("steel/cap is %v in one log and %v in another", a["steel/cap"], b["steel/cap"])
+		}
+	}
+	if a["steel/ordnance"] != hazardRed || b["steel/ordnance"] != hazardRed {
+		t.Errorf("the hazard is not drawn in the reserved red")
+	}
+	many := map[string]int{"steel/ordnance": 1}
+	for i := range 15 {
+		many[fmt.Sprintf("trash%02d/x", i)] = 100 - i
+	}
+	many["gold/ring"] = 1
+	c := ClassColours(many, roles)
+	seen := map[color.Color]string{}
+	for class, col := range c {
+		if col == hazardRed && class != "steel/ordnance" {
+			t.Errorf("%s has the hazard colour", class)
+		}
+		if other, ok := seen[col]; ok && col != hazardRed {
+			t.Errorf("%s and %s share a colour", class, other)
+		}
+		seen[col] = class
+	}
+	if _, ok := c["gold/ring"]; !ok {
+		t.Error("the keeper, the least dug class, was left grey")
+	}
+	if _, ok := c["trash00/x"]; !ok {
+		t.Error("the commonest trash was left grey")
+	}
+	if _, ok := c["trash14/x"]; ok {
+		t.Error("the least dug trash got a colour beyond the palette")
+	}
+	if got := len(c); got != len(classPalette)+1 {
+		t.Errorf("%d classes coloured, want the palette's %d and the hazard", got, len(classPalette))
+	}
+}
+
+// TestTensTicks: the single-number axis is marked every 10, labelled every
+// 10, or every 50 on a long axis (issue 17: two ticks on 0-99).
+func TestTensTicks(t *testing.T) {
+	ticks := tensTicks{}.Ticks(0, 99)
+	if len(ticks) != 10 || ticks[3].Value != 30 || ticks[3].Label != "30" {
+		t.Errorf("0-99: %v", ticks)
+	}
+	long := tensTicks{}.Ticks(-40, 400)
+	labelled := 0
+	for _, tk := range long {
+		if tk.Label != "" {
+			labelled++
+			if math.Mod(tk.Value, 50) != 0 {
+				t.Errorf("label at %g on a long axis", tk.Value)
+			}
+		}
+	}
+	if len(long) != 45 || labelled != 9 {
+		t.Errorf("-40-400: %d ticks, %d labelled; want 45 and 9", len(long), labelled)
 	}
 }

@@ -55,36 +55,14 @@ func fill(dc draw.Canvas, c color.Color) {
 	dc.FillPolygon(c, []vg.Point{dc.Min, {X: dc.Max.X, Y: dc.Min.Y}, dc.Max, {X: dc.Min.X, Y: dc.Max.Y}})
 }
 
-// okabeIto is the colour-blind-safe qualitative palette, black last.
-var okabeIto = []color.Color{
-	color.RGBA{0xE6, 0x9F, 0x00, 0xFF}, // orange
-	color.RGBA{0x56, 0xB4, 0xE9, 0xFF}, // sky blue
-	color.RGBA{0x00, 0x9E, 0x73, 0xFF}, // bluish green
-	color.RGBA{0xF0, 0xE4, 0x42, 0xFF}, // yellow
-	color.RGBA{0x00, 0x72, 0xB2, 0xFF}, // blue
-	color.RGBA{0xD5, 0x5E, 0x00, 0xFF}, // vermillion
-	color.RGBA{0xCC, 0x79, 0xA7, 0xFF}, // reddish purple
-	color.RGBA{0x00, 0x00, 0x00, 0xFF}, // black
-}
+// spadeBlue and oneNumberOrange draw spade and the detector's one number
+// wherever the two are compared (Okabe & Ito's blue and orange, which stay
+// apart under the common colour-vision deficiencies).
+var (
+	spadeBlue       = color.RGBA{0x00, 0x72, 0xB2, 0xFF}
+	oneNumberOrange = color.RGBA{0xE6, 0x9F, 0x00, 0xFF}
+)
 
-// tolMuted is Paul Tol's "muted" qualitative scheme, designed to stay
-// distinct under colour-vision deficiency (Tol, "Colour Schemes", SRON
-// technical note SRON/EPS/TN/09-002, 2021), with black added: ten colours,
-// for plots with more classes than Okabe-Ito's eight.
-var tolMuted = []color.Color{
-	color.RGBA{0x33, 0x22, 0x88, 0xFF}, // indigo
-	color.RGBA{0xCC, 0x66, 0x77, 0xFF}, // rose
-	color.RGBA{0xDD, 0xCC, 0x77, 0xFF}, // sand
-	color.RGBA{0x11, 0x77, 0x33, 0xFF}, // green
-	color.RGBA{0x88, 0xCC, 0xEE, 0xFF}, // cyan
-	color.RGBA{0x88, 0x22, 0x55, 0xFF}, // wine
-	color.RGBA{0x44, 0xAA, 0x99, 0xFF}, // teal
-	color.RGBA{0x99, 0x99, 0x33, 0xFF}, // olive
-	color.RGBA{0xAA, 0x44, 0x99, 0xFF}, // purple
-	color.RGBA{0x00, 0x00, 0x00, 0xFF}, // black
-}
-
-var otherGrey = color.RGBA{0xBB, 0xBB, 0xBB, 0xFF}
 var shadeGrey = color.RGBA{0xE8, 0xE8, 0xE8, 0xFF}
 var stripGrey = color.RGBA{0x44, 0x44, 0x44, 0xFF}
 
@@ -96,6 +74,40 @@ func newPlot(title, x, y string) *plot.Plot {
 	p.X.Label.Text = x
 	p.Y.Label.Text = y
 	return p
+}
+
+// pictureTitle writes a title across the top of a picture of several
+// panels and returns the canvas below it.
+func pictureTitle(dc draw.Canvas, title string) draw.Canvas {
+	font := plot.DefaultFont
+	font.Size = vg.Points(12)
+	dc.FillText(draw.TextStyle{Color: color.Black, Font: font, Handler: plot.DefaultTextHandler, XAlign: draw.XCenter},
+		vg.Point{X: (dc.Min.X + dc.Max.X) / 2, Y: dc.Max.Y - vg.Points(16)}, title)
+	dc.Max.Y -= vg.Points(24)
+	return dc
+}
+
+// legendColumn draws leg in a column of its own at the right of dc, from
+// the top, and returns the rest of dc for the data: a legend never covers
+// what it explains.
+func legendColumn(dc draw.Canvas, leg plot.Legend) draw.Canvas {
+	leg.Top, leg.Left = true, true
+	r := leg.Rectangle(dc)
+	col := dc
+	col.Min.X = dc.Max.X - (r.Max.X - r.Min.X) - vg.Points(8)
+	col.Max.Y -= vg.Points(24)
+	leg.Draw(col)
+	rest := dc
+	rest.Max.X = col.Min.X - vg.Points(8)
+	return rest
+}
+
+// newLegend is a legend in spade's size.
+func newLegend() plot.Legend {
+	leg := plot.NewLegend()
+	leg.TextStyle.Font.Size = 9
+	leg.Padding = vg.Points(2)
+	return leg
 }
 
 // swatch is a legend thumbnail: a filled square.
