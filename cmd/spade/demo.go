@@ -7,7 +7,6 @@ import (
 	"path/filepath"
 
 	"github.com/spade-detect/spade/classify"
-	"github.com/spade-detect/spade/classify/overlap"
 	"github.com/spade-detect/spade/datasets"
 	"github.com/spade-detect/spade/features"
 	"github.com/spade-detect/spade/internal/report"
@@ -65,7 +64,6 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 	if err := os.MkdirAll(opts.dir, 0o755); err != nil {
 		return fmt.Errorf("demo: %w", err)
 	}
-	spec := features.SpecOf(log)
 	fmt.Fprintf(w, "spade demo: the main job on an invented dig history\n\n")
 	fmt.Fprint(w, textui.Wrap(fmt.Sprintf("History: %d digs from two invented sites, Harrowmere Farm (an iron-rich field) and Sandle Reach (a tidal beach), read at %s, each with what came out of the ground. Values: datasets/demo/values.toml.",
 		len(log.Digs), features.HzList(log.Freqs)), 78, ""))
@@ -73,7 +71,7 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 	// 1. How good is it, honestly?
 	fmt.Fprintf(w, "\n== 1. How good is it? Cross-validated, next to the single number\n\n")
 	// One extraction serves the evaluation, the overlap and the model.
-	ds, err := train.FromLog(log, spec, features.LabelBoth)
+	ds, err := train.FromLog(log, features.SpecOf(log), features.LabelBoth)
 	if err != nil {
 		return err
 	}
@@ -85,16 +83,11 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 
 	// 2. Which ranges are ambiguous?
 	fmt.Fprintf(w, "\n== 2. Which display IDs could be anything on this ground?\n\n")
-	axis, by, unit, err := overlap.Axis(log, "display_id")
+	season, err := report.NewSeason(log, ds, ev, vals)
 	if err != nil {
 		return err
 	}
-	keepers, hazards := classify.Roles(vals, ds.Classes)
-	ov, err := overlap.Analyse(by, axis, ds.Classes, ds.Y, ev.Probs, overlap.Options{Keepers: keepers, Hazards: hazards})
-	if err != nil {
-		return err
-	}
-	ov.WriteTable(w, true)
+	season.Overlap.WriteTable(w, true)
 
 	// 3. A model, and new readings.
 	fmt.Fprintf(w, "\n== 3. New readings, classified by a model of the whole history\n\n")
@@ -104,7 +97,6 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 	}
 
 	// 4. Pictures.
-	season := &report.Season{Log: log, Dataset: ds, Eval: ev, Overlap: ov, Unit: unit, Keepers: keepers, Hazards: hazards}
 	pictures, err := report.WritePictures(opts.dir, season.Pictures(report.PictureOverlap, report.PictureReliability, report.PictureConfusion, report.PictureSpectra))
 	if err != nil {
 		return fmt.Errorf("demo: %w", err)
@@ -113,8 +105,7 @@ func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {
 	for _, p := range append([]string{modelPath}, pictures...) {
 		fmt.Fprintf(w, "  %s\n", p)
 	}
-	fmt.Fprintf(w, "\nYour own log next: spade train LOG -o my.spade, then spade classify --model\n")
-	fmt.Fprintf(w, "my.spade READINGS and spade overlap LOG (see the README for the log format).\n")
+	fmt.Fprint(w, "\n"+textui.WrapHanging("", "Your own log next: spade evaluate LOG --values V --report DIR writes a season's report for a browser; spade train LOG -o my.spade, then spade classify --model my.spade READINGS (see the README for the log format).", 80, ""))
 	fmt.Fprint(w, "\n"+textui.WrapHanging("", classify.Safety, 80, ""))
 	return nil
 }

@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"io"
+	"path/filepath"
 
 	"github.com/spade-detect/spade/features"
 	"github.com/spade-detect/spade/internal/report"
@@ -22,6 +23,7 @@ type evaluateOptions struct {
 	output  string
 	group   string
 	noCurve bool
+	report  string
 }
 
 func (o *evaluateOptions) AddFlags(fs *pflag.FlagSet) {
@@ -34,6 +36,7 @@ func (o *evaluateOptions) AddFlags(fs *pflag.FlagSet) {
 	fs.StringVarP(&o.output, "output", "o", "-", "write the report to `FILE` (- is standard output)")
 	fs.StringVar(&o.group, "group", "", "leave-group-out folds by `COLUMN`: site, date or month (whole groups held out together; honest when many digs come from one spot or day)")
 	fs.BoolVar(&o.noCurve, "no-learning-curve", false, "leave out the learning curve (it grows forests on 25, 50 and 75% of each fold too)")
+	fs.StringVar(&o.report, "report", "", "also write a season's report into `DIR`: a page (index.html) with its pictures, for a browser, offline")
 }
 
 func newEvaluateCommand(g *globalOptions) *cobra.Command {
@@ -51,8 +54,12 @@ log-loss, Brier score and calibration, and, with your keepers (--values or
 and 100% of keepers. Field classification programmes for buried munitions
 report 70-95% of clutter left undug at full recovery of the items that matter;
 read these figures against that, and remember they describe your past digs,
-not a promise about the next one.`,
-		Example: "  spade evaluate digs.csv --values values.toml\n  spade evaluate digs.csv --keep gold,silver,coin --folds 10 --format json",
+not a promise about the next one.
+
+--report DIR also writes it all as a page, DIR/index.html, with pictures (dig
+saving, learning curve, reliability, confusion, spectra, ambiguous ID ranges),
+each with a line on how to read it. The page needs nothing but its folder.`,
+		Example: "  spade evaluate digs.csv --values values.toml\n  spade evaluate digs.csv --values values.toml --report season/\n  spade evaluate digs.csv --keep gold,silver,coin --folds 10 --format json",
 		Args:    cobra.ExactArgs(1),
 		RunE:    func(cmd *cobra.Command, args []string) error { return runEvaluate(cmd.Context(), g, opts, args) },
 	}
@@ -72,6 +79,9 @@ func (o *evaluateOptions) check() error {
 }
 
 func runEvaluate(ctx context.Context, g *globalOptions, opts evaluateOptions, args []string) error {
+	if err := report.PrepareFolder(opts.report, args[0], opts.values.file); err != nil {
+		return err
+	}
 	h, err := g.readHistory(&opts.in, &opts.values, &opts.format, opts.check, map[string]string{"-o": opts.output}, args[0])
 	if err != nil {
 		return err
@@ -94,6 +104,16 @@ func runEvaluate(ctx context.Context, g *globalOptions, opts evaluateOptions, ar
 		if ev.Screen, err = evaluateScreen(ctx, g, h.log, h.spec, opts.seed, h.vals, opts.format.json()); err != nil {
 			return err
 		}
+	}
+	if opts.report != "" {
+		season, err := report.NewSeason(h.log, h.ds, ev, h.vals)
+		if err != nil {
+			return err
+		}
+		if _, err := report.WriteHTML(ctx, opts.report, season, report.Meta{LogName: args[0], Date: report.Today(), Version: versionString()}); err != nil {
+			return err
+		}
+		defer g.note("wrote %s", filepath.Join(opts.report, report.PageFile))
 	}
 	return g.writeOutput(opts.output, func(w io.Writer) error {
 		if opts.format.json() {

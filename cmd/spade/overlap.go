@@ -33,7 +33,7 @@ func (o *overlapOptions) AddFlags(fs *pflag.FlagSet) {
 	o.values.AddFlags(fs)
 	fs.StringVar(&o.model, "model", "", "use this model's out-of-bag probabilities instead of cross-validating (digs matched by id, readings and class; a model of another log whose ids collide is refused)")
 	fs.StringVar(&o.by, "by", "", "the single-number axis: display_id or phase_<hz> (default: display_id when the log has it)")
-	fs.Float64Var(&o.bin, "bin", 0, "bin width in the axis's units (default: about 30 digs a bin, rounded)")
+	fs.Float64Var(&o.bin, "bin", 0, "bin width in the axis's units (default: about 30 digs a bin and at least 10 bins, rounded)")
 	fs.Float64Var(&o.minTop, "min-top-share", 0.8, "a bin is ambiguous when its top class has less than this share")
 	fs.Float64Var(&o.maxEntropy, "max-entropy", 1, "or when its entropy is above this many bits")
 	fs.StringVar(&o.plot, "plot", "", "also draw the class shares per bin into `FILE` (.png or .svg)")

@@ -168,11 +168,27 @@ func WriteScreen(w io.Writer, s *train.ScreenEvaluation) {
 // writeConfusions lists the commonest mistakes, which read better in 80
 // columns than a 13-by-13 matrix (the JSON has the whole matrix).
 func writeConfusions(w io.Writer, who string, classes []string, cm map[string]map[string]int) {
-	type mix struct {
-		truth, taken string
-		n, of        int
+	mixes := commonestMistakes(classes, cm, 8)
+	if len(mixes) == 0 {
+		return
 	}
-	var mixes []mix
+	fmt.Fprintf(w, "\nCommonest mistakes (%s, held-out)\n", who)
+	for _, x := range mixes {
+		fmt.Fprintf(w, "  %-24s taken for %-24s %4d of %d\n", textui.Trunc(x.Truth, 24), textui.Trunc(x.Taken, 24), x.N, x.Of)
+	}
+}
+
+// mistake is one cell off the confusion matrix's diagonal: N of the Of
+// digs of class Truth were taken for Taken.
+type mistake struct {
+	Truth, Taken string
+	N, Of        int
+}
+
+// commonestMistakes lists at most n cells off the diagonal of cm, the
+// largest first (ties in class order).
+func commonestMistakes(classes []string, cm map[string]map[string]int, n int) []mistake {
+	var mixes []mistake
 	for _, t := range classes {
 		of := 0
 		for _, v := range cm[t] {
@@ -180,16 +196,10 @@ func writeConfusions(w io.Writer, who string, classes []string, cm map[string]ma
 		}
 		for _, p := range classes {
 			if p != t && cm[t][p] > 0 {
-				mixes = append(mixes, mix{t, p, cm[t][p], of})
+				mixes = append(mixes, mistake{t, p, cm[t][p], of})
 			}
 		}
 	}
-	sort.SliceStable(mixes, func(i, j int) bool { return mixes[i].n > mixes[j].n })
-	if len(mixes) == 0 {
-		return
-	}
-	fmt.Fprintf(w, "\nCommonest mistakes (%s, held-out)\n", who)
-	for _, x := range mixes[:min(8, len(mixes))] {
-		fmt.Fprintf(w, "  %-24s taken for %-24s %4d of %d\n", textui.Trunc(x.truth, 24), textui.Trunc(x.taken, 24), x.n, x.of)
-	}
+	sort.SliceStable(mixes, func(i, j int) bool { return mixes[i].N > mixes[j].N })
+	return mixes[:min(n, len(mixes))]
 }

@@ -5,26 +5,10 @@ import (
 	"io"
 	"path/filepath"
 
-	"github.com/spade-detect/spade/classify/overlap"
 	"github.com/spade-detect/spade/classify/plots"
 	"github.com/spade-detect/spade/features"
 	"github.com/spade-detect/spade/train"
 )
-
-// Season is what a report is drawn from: a labelled log, its table, what
-// evaluate found on it, and its ambiguous ranges.
-type Season struct {
-	Log     *features.Log
-	Dataset *train.Dataset
-	Eval    *train.Evaluation
-	// Overlap is the ambiguous-range analysis on the axis Unit names
-	// ("display ID", "phase at 9700 Hz (degrees)"); nil leaves it out.
-	Overlap *overlap.Result
-	Unit    string
-	// Keepers and Hazards are the classes the user keeps and never digs
-	// (classify.Roles), for the pictures' colours.
-	Keepers, Hazards []string
-}
 
 // Picture is one figure of a report: its file name in the report's
 // folder, a title, a one-line caption saying how to read it, and how it is
@@ -40,7 +24,22 @@ const (
 	PictureReliability = "reliability.png"
 	PictureConfusion   = "confusion.png"
 	PictureSpectra     = "spectra.png"
+	PictureLearning    = "learning.png"
+	PictureDigSaving   = "dig-saving.png"
 )
+
+// AllPictures are the report's pictures, in the page's order.
+var AllPictures = []string{PictureDigSaving, PictureLearning, PictureReliability, PictureConfusion, PictureSpectra, PictureOverlap}
+
+// savingGrid is the keeper shares the dig-saving picture is drawn at:
+// every 1 % from half the keepers to all of them.
+var savingGrid = func() []float64 {
+	var g []float64
+	for k := 50; k <= 100; k++ {
+		g = append(g, float64(k)/100)
+	}
+	return g
+}()
 
 // Pictures lists the pictures of s with these file names, in that order;
 // one the season has no data for (no ranges, no forest) is left out.
@@ -57,13 +56,26 @@ func (s *Season) Pictures(files ...string) []Picture {
 func (s *Season) picture(file string) (Picture, bool) {
 	ev, ds := s.Eval, s.Dataset
 	model := ev != nil && !ev.BaselineOnly
+	roles := plots.Roles{Keepers: s.Keepers, Hazards: s.Hazards}
 	switch file {
+	case PictureLearning:
+		return Picture{File: file, draw: func(w io.Writer, f string) error {
+			return plots.Learning(w, f, ev.Learning, ev.Baseline)
+		}}, model && len(ev.Learning) > 0
+	case PictureDigSaving:
+		if ev == nil || ev.DigSaving == nil {
+			return Picture{}, false
+		}
+		curves := train.SavingCurves(ds, s.Keepers, s.Hazards, ev.Probs, ev.BaselineProbs, savingGrid)
+		return Picture{File: file, draw: func(w io.Writer, f string) error {
+			return plots.DigSaving(w, f, curves.Model, curves.Baseline, train.SavingLevels)
+		}}, true
 	case PictureOverlap:
 		if s.Overlap == nil || len(s.Overlap.Bins) == 0 {
 			return Picture{}, false
 		}
 		return Picture{File: file, draw: func(w io.Writer, f string) error {
-			return plots.Overlap(w, f, s.Overlap, s.Unit, append(append([]string{}, s.Hazards...), s.Keepers...))
+			return plots.Overlap(w, f, s.Overlap, s.Unit, roles)
 		}}, true
 	case PictureReliability:
 		return Picture{File: file, draw: func(w io.Writer, f string) error {
@@ -78,7 +90,7 @@ func (s *Season) picture(file string) (Picture, bool) {
 			return Picture{}, false
 		}
 		return Picture{File: file, draw: func(w io.Writer, f string) error {
-			return plots.Spectra(w, f, s.Log.Freqs, ds.Classes, phasesOf(s.Log), ds.Y)
+			return plots.Spectra(w, f, s.Log.Freqs, ds.Classes, phasesOf(s.Log), ds.Y, roles)
 		}}, true
 	}
 	return Picture{}, false
