@@ -103,7 +103,7 @@ func BenchmarkNearest(b *testing.B) {
 	if err != nil {
 		b.Fatal(err)
 	}
-	for _, n := range []int{2000, 5000, 100000} {
+	for _, n := range []int{300, 1000, 2000, 5000, 100000} {
 		digs, _, err := datasets.Simulate(datasets.Options{N: n, Seed: 42})
 		if err != nil {
 			b.Fatal(err)
