@@ -285,35 +285,49 @@ func labelWords(kind Label) string {
 
 // ReadLog reads a whole dig log into memory.
 func ReadLog(r io.Reader, name string, opts ReadOptions) (*Log, error) {
+	log, _, err := readAll(r, name, opts, true)
+	return log, err
+}
+
+// Survey reads a whole log as ReadLog does, refusing what it refuses, but
+// keeps no dig: what it learns (frequencies, whether every dig has a
+// display ID and a ground reading, the bad rows, ignored columns and
+// notes) comes in a Log without Digs, with the count of digs it holds. Its
+// memory is the set of dig ids (for duplicates), not the digs: a second
+// pass over the same file can then stream.
+func Survey(r io.Reader, name string, opts ReadOptions) (*Log, int, error) {
+	return readAll(r, name, opts, false)
+}
+
+func readAll(r io.Reader, name string, opts ReadOptions, keep bool) (*Log, int, error) {
 	rd, err := NewReader(r, name, opts)
 	if err != nil {
-		return nil, err
+		return nil, 0, err
 	}
 	log := &Log{Name: name}
+	n := 0
 	for {
 		d, err := rd.Next()
 		if err == io.EOF {
 			break
 		}
 		if err != nil {
-			return nil, err
+			return nil, 0, err
 		}
-		log.Digs = append(log.Digs, d)
+		n++
+		log.HasGround = log.HasGround || d.Ground != nil
+		if keep {
+			log.Digs = append(log.Digs, d)
+		}
 	}
 	log.Freqs, log.Ignored, log.Bad, log.Unlabelled, log.Notes = rd.freqs, rd.ignored, rd.Bad, rd.Unlabelled, rd.Notes
 	log.BlankRows = rd.BlankRows
 	log.HasDisplayID = rd.HasDisplayID()
 	log.DisplayIDOnly = len(rd.freqs) == 0
-	for i := range log.Digs {
-		if log.Digs[i].Ground != nil {
-			log.HasGround = true
-			break
-		}
+	if n == 0 {
+		return nil, 0, &ParseError{File: name, Err: fmt.Errorf("%w: %d bad and %d unlabelled rows, none left", ErrNoDigs, len(rd.Bad), rd.Unlabelled)}
 	}
-	if len(log.Digs) == 0 {
-		return nil, &ParseError{File: name, Err: fmt.Errorf("%w: %d bad and %d unlabelled rows, none left", ErrNoDigs, len(rd.Bad), rd.Unlabelled)}
-	}
-	return log, nil
+	return log, n, nil
 }
 
 // readingFrom turns one frequency's two values into a Reading, checking them.

@@ -39,7 +39,7 @@ func (o *classifyOptions) AddFlags(fs *pflag.FlagSet) {
 
 func newClassifyCommand(g *globalOptions) *cobra.Command {
 	var opts classifyOptions
-	cmd := &cobra.Command{
+	return withFlags(&cobra.Command{
 		Use:   "classify --model MODEL [READINGS|-]",
 		Short: "Give class probabilities, nearest past digs and a dig decision for new readings",
 		Long: `classify reads new readings (a dig-log file in CSV or JSON Lines, - for standard
@@ -72,9 +72,7 @@ written, in order, then the run stops with the row's error and exit 1.`,
 			"  spade classify --model my.spade -r \"4.3k=111.8/0.10, 9.7k=129.0/0.17, 21.7k=147.5/0.23, 36.3k=163.2/0.26, id=60\"",
 		Args: cobra.MaximumNArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error { return runClassify(cmd.Context(), g, opts, args) },
-	}
-	opts.AddFlags(cmd.Flags())
-	return cmd
+	}, &opts)
 }
 
 func runClassify(ctx context.Context, g *globalOptions, opts classifyOptions, args []string) error {

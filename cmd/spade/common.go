@@ -9,8 +9,16 @@ import (
 	"github.com/spade-detect/spade/features"
 	"github.com/spade-detect/spade/internal/cli"
 	"github.com/spade-detect/spade/train"
+	"github.com/spf13/cobra"
 	"github.com/spf13/pflag"
 )
+
+// withFlags adds a command's options' flags to it: every command is made
+// of a cobra.Command and an options struct with AddFlags.
+func withFlags(cmd *cobra.Command, opts interface{ AddFlags(*pflag.FlagSet) }) *cobra.Command {
+	opts.AddFlags(cmd.Flags())
+	return cmd
+}
 
 // labelFlag is --label, shared by train and evaluate.
 type labelFlag struct{ value string }

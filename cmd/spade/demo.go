@@ -30,7 +30,7 @@ func (o *demoOptions) AddFlags(fs *pflag.FlagSet) {
 
 func newDemoCommand(g *globalOptions) *cobra.Command {
 	var opts demoOptions
-	cmd := &cobra.Command{
+	return withFlags(&cobra.Command{
 		Use:   "demo",
 		Short: "Run the whole job on the embedded, invented demo dig history",
 		Long: `demo runs spade end to end on an invented history of 1500 digs from two
@@ -43,9 +43,7 @@ anything in the history), and writes the model and plots into a folder.`,
 		Example: "  spade demo\n  spade demo -o /tmp/demo --trees 100",
 		Args:    cobra.NoArgs,
 		RunE:    func(cmd *cobra.Command, args []string) error { return runDemo(cmd.Context(), g, opts) },
-	}
-	opts.AddFlags(cmd.Flags())
-	return cmd
+	}, &opts)
 }
 
 func runDemo(ctx context.Context, g *globalOptions, opts demoOptions) error {

@@ -41,7 +41,7 @@ func (o *evaluateOptions) AddFlags(fs *pflag.FlagSet) {
 
 func newEvaluateCommand(g *globalOptions) *cobra.Command {
 	var opts evaluateOptions
-	cmd := &cobra.Command{
+	return withFlags(&cobra.Command{
 		Use:   "evaluate LOG",
 		Short: "Cross-validate on your history, next to the single-number baseline",
 		Long: `evaluate says, honestly and in figures, how good a model of your history is:
@@ -62,9 +62,7 @@ each with a line on how to read it. The page needs nothing but its folder.`,
 		Example: "  spade evaluate digs.csv --values values.toml\n  spade evaluate digs.csv --values values.toml --report season/\n  spade evaluate digs.csv --keep gold,silver,coin --folds 10 --format json",
 		Args:    cobra.ExactArgs(1),
 		RunE:    func(cmd *cobra.Command, args []string) error { return runEvaluate(cmd.Context(), g, opts, args) },
-	}
-	opts.AddFlags(cmd.Flags())
-	return cmd
+	}, &opts)
 }
 
 // check refuses flags out of range before any reading.

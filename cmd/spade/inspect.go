@@ -21,16 +21,14 @@ func (o *inspectOptions) AddFlags(fs *pflag.FlagSet) { o.format.AddFlags(fs, "ta
 
 func newInspectCommand(g *globalOptions) *cobra.Command {
 	var opts inspectOptions
-	cmd := &cobra.Command{
+	return withFlags(&cobra.Command{
 		Use:     "inspect MODEL",
 		Short:   "Show what a model was trained on and how well it did",
 		Long:    "inspect shows a model file's frequencies, features, classes with their dig counts, date, seed, spade version, out-of-bag figures and which features the forest leans on.",
 		Example: "  spade inspect my.spade\n  spade inspect my.spade --format json",
 		Args:    cobra.ExactArgs(1),
 		RunE:    func(cmd *cobra.Command, args []string) error { return runInspect(cmd.Context(), g, opts, args) },
-	}
-	opts.AddFlags(cmd.Flags())
-	return cmd
+	}, &opts)
 }
 
 func runInspect(_ context.Context, g *globalOptions, opts inspectOptions, args []string) error {

@@ -44,7 +44,7 @@ func (o *overlapOptions) AddFlags(fs *pflag.FlagSet) {
 
 func newOverlapCommand(g *globalOptions) *cobra.Command {
 	var opts overlapOptions
-	cmd := &cobra.Command{
+	return withFlags(&cobra.Command{
 		Use:   "overlap LOG",
 		Short: "Show which ID ranges are ambiguous on your ground, and what the model resolves there",
 		Long: `overlap shows, from your own history, which values of your detector's single
@@ -61,9 +61,7 @@ mean entropy before and after, and the trash skippable there while keeping
 			"  spade overlap digs.csv --model my.spade --by phase_10000 --bin 3 --format json",
 		Args: cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error { return runOverlap(cmd.Context(), g, opts, args) },
-	}
-	opts.AddFlags(cmd.Flags())
-	return cmd
+	}, &opts)
 }
 
 // check refuses flags out of range before any reading.

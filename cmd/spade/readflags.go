@@ -41,6 +41,12 @@ func (g *globalOptions) readLog(name string, opts features.ReadOptions) (*featur
 	if err != nil {
 		return nil, err
 	}
+	g.reportLog(log)
+	return log, nil
+}
+
+// reportLog says what reading a log skipped, ignored and noted.
+func (g *globalOptions) reportLog(log *features.Log) {
 	g.reportRead(log.Bad, log.Ignored)
 	for _, n := range log.Notes {
 		g.note("note: %s", n)
@@ -51,7 +57,6 @@ func (g *globalOptions) readLog(name string, opts features.ReadOptions) (*featur
 	if log.Unlabelled > 0 {
 		g.note("skipped %d unlabelled row(s)", log.Unlabelled)
 	}
-	return log, nil
 }
 
 // reportRead says once which rows were skipped and which columns ignored.

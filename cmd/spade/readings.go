@@ -38,16 +38,15 @@ func readingSource(g *globalOptions, opts classifyOptions, args []string) (func(
 		f.Close()
 		return nil, "", nil, err
 	}
-	return func() (features.Dig, error) {
-			d, err := rd.Next()
-			if errors.Is(err, io.EOF) {
-				g.reportRead(rd.Bad, rd.Ignored())
-				for _, n := range rd.Notes {
-					g.note("note: %s", n)
-				}
+	next := func() (features.Dig, error) {
+		d, err := rd.Next()
+		if errors.Is(err, io.EOF) {
+			g.reportRead(rd.Bad, rd.Ignored())
+			for _, n := range rd.Notes {
+				g.note("note: %s", n)
 			}
-			return d, err
-		}, name, func() {
-			f.Close()
-		}, nil
+		}
+		return d, err
+	}
+	return next, name, func() { f.Close() }, nil
 }

@@ -37,7 +37,7 @@ func (o *responseOptions) AddFlags(fs *pflag.FlagSet) {
 
 func newResponseCommand(g *globalOptions) *cobra.Command {
 	var opts responseOptions
-	cmd := &cobra.Command{
+	return withFlags(&cobra.Command{
 		Use:   "response",
 		Short: "Show the modelled response of a described object at given frequencies",
 		Long: `response answers "what would this object read at my frequencies?" with spade's
@@ -55,9 +55,7 @@ Materials: ` + datasets.MaterialNames() + ` (CRC Handbook at 20 °C; the alloys 
 			"  spade response --shape sphere --sigma 1e7 --mur 100 --diameter-mm 8 --freqs 1k,15k",
 		Args: cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, args []string) error { return runResponse(cmd.Context(), g, opts) },
-	}
-	opts.AddFlags(cmd.Flags())
-	return cmd
+	}, &opts)
 }
 
 func runResponse(_ context.Context, g *globalOptions, o responseOptions) error {

@@ -35,7 +35,7 @@ func (o *simulateOptions) AddFlags(fs *pflag.FlagSet) {
 
 func newSimulateCommand(g *globalOptions) *cobra.Command {
 	var opts simulateOptions
-	cmd := &cobra.Command{
+	return withFlags(&cobra.Command{
 		Use:   "simulate",
 		Short: "Write a simulated dig log from spade's physics models",
 		Long: `simulate draws dug targets from an invented scenario's object catalogue and
@@ -47,9 +47,7 @@ map of the 10 kHz phase and copies no instrument.`,
 		Example: "  spade simulate --n 500 --seed 3 -o practice.csv\n  spade simulate --scenario beach --freqs 4k,12k,36k --unlabelled",
 		Args:    cobra.NoArgs,
 		RunE:    func(cmd *cobra.Command, args []string) error { return runSimulate(cmd.Context(), g, opts) },
-	}
-	opts.AddFlags(cmd.Flags())
-	return cmd
+	}, &opts)
 }
 
 func runSimulate(_ context.Context, g *globalOptions, opts simulateOptions) error {

@@ -37,7 +37,7 @@ func (o *trainOptions) AddFlags(fs *pflag.FlagSet) {
 
 func newTrainCommand(g *globalOptions) *cobra.Command {
 	var opts trainOptions
-	cmd := &cobra.Command{
+	return withFlags(&cobra.Command{
 		Use:   "train LOG -o MODEL",
 		Short: "Learn a model from your dig history",
 		Long: `train grows a random forest on your dig history (every reading with what came
@@ -60,9 +60,7 @@ accuracy that the out-of-bag figures show.`,
 		Example: "  spade train digs.csv -o my.spade\n  spade train digs.csv -o shapes.spade --label shape --trees 300 --skip-unlabelled",
 		Args:    cobra.ExactArgs(1),
 		RunE:    func(cmd *cobra.Command, args []string) error { return runTrain(cmd.Context(), g, opts, args) },
-	}
-	opts.AddFlags(cmd.Flags())
-	return cmd
+	}, &opts)
 }
 
 func runTrain(ctx context.Context, g *globalOptions, opts trainOptions, args []string) error {
