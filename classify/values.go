@@ -261,6 +261,29 @@ func (v *Values) Split(classes []string) (keepers, hazards []string) {
 	return keepers, hazards
 }
 
+// AddKeepers adds a comma-separated list of keeper names (classes,
+// materials or shapes, as --keep gives them) to v's keepers, case-folded
+// and trimmed. With no values (v nil) it starts from the default values at
+// no cost a dig, so that the named keepers weigh and nothing else does; a
+// list that names nothing leaves v as it is, nil included.
+func AddKeepers(v *Values, list string) *Values {
+	var names []string
+	for _, k := range strings.Split(list, ",") {
+		if k = strings.ToLower(strings.TrimSpace(k)); k != "" {
+			names = append(names, k)
+		}
+	}
+	if len(names) == 0 {
+		return v
+	}
+	if v == nil {
+		v = DefaultValues()
+		v.CostPerDig = 0
+	}
+	v.Keep = append(v.Keep, names...)
+	return v
+}
+
 // Roles splits classes into keepers and hazards by v. With no values (v
 // nil) no class is a keeper unless the user names it, and the default
 // hazards (any shape "ordnance") are still marked.

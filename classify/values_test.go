@@ -149,3 +149,26 @@ func TestHazardThresholdChecks(t *testing.T) {
 		t.Errorf("default threshold %v, %v", v.HazardThreshold, err)
 	}
 }
+
+// TestAddKeepers: --keep's list adds keepers, case-folded and trimmed, to a
+// values file's or, with none, to values that weigh nothing else (no cost
+// a dig, the default hazards); an empty list changes nothing.
+func TestAddKeepers(t *testing.T) {
+	if AddKeepers(nil, " , ") != nil {
+		t.Error("an empty list made values")
+	}
+	v := AddKeepers(nil, " Gold , coin,,")
+	if v == nil || len(v.Keep) != 2 || v.Keep[0] != "gold" || v.Keep[1] != "coin" || v.CostPerDig != 0 || !v.IsHazard("steel/ordnance") {
+		t.Fatalf("keepers from nothing: %+v", v)
+	}
+	if !v.IsKeeper("gold/ring") || v.IsKeeper("iron/nail") {
+		t.Error("gold/ring not a keeper, or iron/nail one")
+	}
+	file, err := ParseValues("v.toml", "cost_per_dig = 2.0\n[value]\n\"silver/ring\" = 60\n")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := AddKeepers(file, "button"); got != file || !got.IsKeeper("brass/button") || !got.IsKeeper("silver/ring") || got.CostPerDig != 2 {
+		t.Errorf("keepers added to a values file: %+v", got)
+	}
+}

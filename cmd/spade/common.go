@@ -77,18 +77,7 @@ func (v *valuesFlags) load() (*classify.Values, error) {
 			return nil, err
 		}
 	}
-	if v.keep != "" {
-		if vals == nil {
-			vals = classify.DefaultValues()
-			vals.CostPerDig = 0
-		}
-		for _, k := range strings.Split(v.keep, ",") {
-			if k = strings.ToLower(strings.TrimSpace(k)); k != "" {
-				vals.Keep = append(vals.Keep, k)
-			}
-		}
-	}
-	return vals, nil
+	return classify.AddKeepers(vals, v.keep), nil
 }
 
 // check refuses values names that name nothing the model or log knows.

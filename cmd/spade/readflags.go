@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"github.com/spade-detect/spade/features"
+	"github.com/spade-detect/spade/internal/textui"
 	"github.com/spf13/pflag"
 )
 
@@ -37,7 +38,9 @@ func (g *globalOptions) readLog(name string, opts features.ReadOptions) (*featur
 		return nil, err
 	}
 	defer f.Close()
-	log, err := features.ReadLog(f, name, opts)
+	in, bar := textui.ReadingBar(g.stderr, f, "reading "+name, g.isTerminal && !g.quiet)
+	log, err := features.ReadLog(in, name, opts)
+	bar.Done()
 	if err != nil {
 		return nil, err
 	}

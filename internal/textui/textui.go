@@ -119,6 +119,42 @@ func NewProgress(w io.Writer, total int, what string, on bool) *Progress {
 	)}
 }
 
+// ReadingBar shows the bytes read from r on a bar over its size, when r
+// is a file that knows it (else a count), and returns the reader to read
+// through. Done clears it.
+func ReadingBar(w io.Writer, r io.Reader, what string, on bool) (io.Reader, *Progress) {
+	total := int64(-1)
+	if f, ok := r.(interface{ Stat() (os.FileInfo, error) }); ok {
+		if fi, err := f.Stat(); err == nil && fi.Mode().IsRegular() {
+			total = fi.Size()
+		}
+	}
+	if !on || total == 0 {
+		return r, &Progress{}
+	}
+	p := &Progress{bar: progressbar.NewOptions64(total,
+		progressbar.OptionSetWriter(w),
+		progressbar.OptionSetDescription(what),
+		progressbar.OptionSetWidth(30),
+		progressbar.OptionShowBytes(true),
+		progressbar.OptionClearOnFinish(),
+		progressbar.OptionThrottle(100_000_000),
+	)}
+	return &countingReader{r: r, p: p}, p
+}
+
+// countingReader steps a bar by the bytes read through it.
+type countingReader struct {
+	r io.Reader
+	p *Progress
+}
+
+func (c *countingReader) Read(b []byte) (int, error) {
+	n, err := c.r.Read(b)
+	c.p.Step(n)
+	return n, err
+}
+
 // Step advances the bar by n; safe to call from several goroutines.
 func (p *Progress) Step(n int) {
 	if p.bar != nil {

@@ -1,6 +1,10 @@
 package textui
 
 import (
+	"bytes"
+	"io"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 )
@@ -57,5 +61,36 @@ func TestBarAndTrunc(t *testing.T) {
 	}
 	if got := Trunc("aluminium/ring-pull", 8); got != "alumini…" || len([]rune(got)) != 8 {
 		t.Errorf("Trunc = %q, want 8 runes ending in …", got)
+	}
+}
+
+// TestReadingBarPassesBytesThrough: the reader behind the bar gives the
+// very bytes of the file, and the bar is drawn only when asked, over the
+// file's size.
+func TestReadingBarPassesBytesThrough(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "log.csv")
+	data := []byte(strings.Repeat("dig,material,shape\n", 5000))
+	if err := os.WriteFile(path, data, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, on := range []bool{false, true} {
+		f, err := os.Open(path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var screen bytes.Buffer
+		r, bar := ReadingBar(&screen, f, "reading log.csv", on)
+		got, err := io.ReadAll(r)
+		bar.Done()
+		f.Close()
+		if err != nil || !bytes.Equal(got, data) {
+			t.Errorf("on=%v: read %d bytes (%v), want %d", on, len(got), err, len(data))
+		}
+		if drawn := screen.Len() > 0; drawn != on {
+			t.Errorf("on=%v: bar drawn %v", on, drawn)
+		}
+		if !on && r != io.Reader(f) {
+			t.Error("off, the file is not read directly")
+		}
 	}
 }
