@@ -11,11 +11,10 @@ import (
 )
 
 // Picture is one figure of a report: its file name in the report's
-// folder, a title, a one-line caption saying how to read it, and how it is
-// drawn.
+// folder, and how it is drawn (the page gives its caption).
 type Picture struct {
-	File, Title, Caption string
-	draw                 func(w io.Writer, format string) error
+	File string
+	draw func(w io.Writer, format string) error
 }
 
 // Picture names, for Pictures.
