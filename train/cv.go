@@ -124,7 +124,7 @@ func foldsFor(ds *Dataset, o EvalOptions) (fold []int, folds int, warnings []str
 	folds = o.Folds
 	if least := slices.Min(counts); least < folds && folds > 2 {
 		folds = max(2, least)
-		warnings = append(warnings, fmt.Sprintf("folds lowered from %d to %d: the smallest class has %d digs", o.Folds, folds, least))
+		warnings = append(warnings, fmt.Sprintf("folds lowered from %d to %d: the smallest class has %s", o.Folds, folds, features.Plural(least, "dig")))
 	}
 	if slices.Min(counts) < 2 {
 		warnings = append(warnings, "a class with a single dig cannot be both learnt and held out: its figures are those of a class the model never saw")
