@@ -136,48 +136,66 @@ func (c *csvSource) next() (Dig, error, bool) {
 }
 
 func (c *csvSource) row(line int, rec []string) (Dig, error) {
-	s := c.s
 	perr := func(col int, err error) error {
-		return &ParseError{File: c.rd.name, Line: line, Column: s.names[col], Err: err}
-	}
-	text := func(k columnKind) (string, int) {
-		if i, ok := s.index[k]; ok {
-			return strings.TrimSpace(rec[i]), i
-		}
-		return "", -1
+		return &ParseError{File: c.rd.name, Line: line, Column: c.s.names[col], Err: err}
 	}
 	d := Dig{Line: line, DepthCM: math.NaN(), DisplayID: math.NaN()}
-	d.ID, _ = text(colDig)
-	d.Site, _ = text(colSite)
-	m, mi := text(colMaterial)
-	sh, si := text(colShape)
+	if err := c.digFields(&d, rec, perr); err != nil {
+		return d, err
+	}
+	return d, c.readings(&d, rec, perr)
+}
+
+// cell is the trimmed text of a per-dig column and its index, or "" and
+// -1 when the log has no such column.
+func (c *csvSource) cell(rec []string, k columnKind) (string, int) {
+	if i, ok := c.s.index[k]; ok {
+		return strings.TrimSpace(rec[i]), i
+	}
+	return "", -1
+}
+
+// digFields reads a row's per-dig columns: id, site, labels, date, depth
+// and display ID.
+func (c *csvSource) digFields(d *Dig, rec []string, perr func(int, error) error) error {
+	d.ID, _ = c.cell(rec, colDig)
+	d.Site, _ = c.cell(rec, colSite)
+	m, mi := c.cell(rec, colMaterial)
+	sh, si := c.cell(rec, colShape)
 	d.Material, d.Shape = normaliseLabel(m), normaliseLabel(sh)
 	if err := checkLabel(d.Material); err != nil {
-		return d, perr(mi, err)
+		return perr(mi, err)
 	}
 	if err := checkLabel(d.Shape); err != nil {
-		return d, perr(si, err)
+		return perr(si, err)
 	}
-	if v, _ := text(colDate); v != "" {
-		d.Date = c.rd.date(v, line)
+	if v, _ := c.cell(rec, colDate); v != "" {
+		d.Date = c.rd.date(v, d.Line)
 	}
-	if v, i := text(colDepth); v != "" {
+	if v, i := c.cell(rec, colDepth); v != "" {
 		x, err := parseNumber(v)
 		if err == nil && x < 0 {
 			err = cause(ErrNegative, "got %g", x)
 		}
 		if err != nil {
-			return d, perr(i, err)
+			return perr(i, err)
 		}
 		d.DepthCM = x
 	}
-	if v, i := text(colDisplayID); v != "" {
+	if v, i := c.cell(rec, colDisplayID); v != "" {
 		x, err := parseNumber(v)
 		if err != nil {
-			return d, perr(i, err)
+			return perr(i, err)
 		}
 		d.DisplayID = x
 	}
+	return nil
+}
+
+// readings reads a row's target reading at every frequency, and its
+// ground reading, which must cover all of them or none.
+func (c *csvSource) readings(d *Dig, rec []string, perr func(int, error) error) error {
+	s := c.s
 	d.Readings = make([]Reading, len(s.freqs))
 	groundCells := 0
 	var ground []Reading
@@ -193,7 +211,7 @@ func (c *csvSource) row(line int, rec []string) (Dig, error) {
 		}
 		rd, err := c.pair(hz, polar, rec, ia, ib, perr)
 		if err != nil {
-			return d, err
+			return err
 		}
 		d.Readings[k] = rd
 		if !s.ground {
@@ -210,7 +228,7 @@ func (c *csvSource) row(line int, rec []string) (Dig, error) {
 		groundCells++
 		g, err := c.pair(hz, gpolar, rec, ga, gb, perr)
 		if err != nil {
-			return d, err
+			return err
 		}
 		ground[k] = g
 	}
@@ -218,10 +236,10 @@ func (c *csvSource) row(line int, rec []string) (Dig, error) {
 	case groundCells == len(s.freqs):
 		d.Ground = ground
 	case groundCells > 0:
-		return d, &ParseError{File: c.rd.name, Line: line, Column: "ground",
+		return &ParseError{File: c.rd.name, Line: d.Line, Column: "ground",
 			Err: cause(ErrFreqSet, "the ground reading covers %d of the log's %d frequencies", groundCells, len(s.freqs))}
 	}
-	return d, nil
+	return nil
 }
 
 // pair reads the two cells of one reading.
