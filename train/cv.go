@@ -170,14 +170,7 @@ func CrossValidate(ctx context.Context, ds *Dataset, o EvalOptions) (*Evaluation
 	total := fo.Trees * o.Folds * len(fractions)
 	step := 0
 	for k := range o.Folds {
-		var trainIdx, testIdx []int
-		for i, f := range fold {
-			if f == k {
-				testIdx = append(testIdx, i)
-			} else {
-				trainIdx = append(trainIdx, i)
-			}
-		}
+		trainIdx, testIdx := foldRows(fold, k)
 		testDS := ds.Subset(testIdx)
 		// A seeded order of the fold's training digs: each share of the
 		// learning curve learns from the first part of it.
@@ -185,15 +178,7 @@ func CrossValidate(ctx context.Context, ds *Dataset, o EvalOptions) (*Evaluation
 		var probs [][]float64
 		var trainDS *Dataset
 		for j, frac := range fractions {
-			sub := trainIdx
-			if frac < 1 {
-				m := max(2, int(frac*float64(len(trainIdx))))
-				sub = make([]int, m)
-				for q := range m {
-					sub[q] = trainIdx[perm[q]]
-				}
-				slices.Sort(sub)
-			}
+			sub := learningShare(trainIdx, perm, frac)
 			trainDS = ds.Subset(sub)
 			trainSizes[j] += len(sub)
 			fopts := fo
@@ -203,18 +188,8 @@ func CrossValidate(ctx context.Context, ds *Dataset, o EvalOptions) (*Evaluation
 				fopts.Progress = func(done int) { o.Progress(base+done, total) }
 			}
 			step++
-			forest, oob, err := Grow(ctx, trainDS, fopts)
-			if err != nil {
+			if probs, err = heldOutProbs(ctx, trainDS, testDS, fopts, !o.Raw); err != nil {
 				return nil, err
-			}
-			// The fold's shrinkage is fitted on its own training digs'
-			// out-of-bag predictions, as a model of the whole history's is.
-			shrink := FitShrinkage(trainDS.Y, oob, K)
-			probs = forest.PredictDataset(testDS)
-			if !o.Raw {
-				for _, p := range probs {
-					shrink.Apply(p)
-				}
 			}
 			for q, i := range testIdx {
 				curve[j][i] = probs[q]
@@ -247,6 +222,51 @@ func CrossValidate(ctx context.Context, ds *Dataset, o EvalOptions) (*Evaluation
 		ev.DigSaving = SavingCurves(ds, o.Keepers, o.Hazards, ev.Probs, ev.BaselineProbs, SavingLevels)
 	}
 	return ev, nil
+}
+
+// foldRows are the rows fold k learns from and is tested on.
+func foldRows(fold []int, k int) (trainIdx, testIdx []int) {
+	for i, f := range fold {
+		if f == k {
+			testIdx = append(testIdx, i)
+		} else {
+			trainIdx = append(trainIdx, i)
+		}
+	}
+	return trainIdx, testIdx
+}
+
+// learningShare is the first frac of a fold's training rows in the seeded
+// order perm (at least 2), in row order; all of them for frac 1.
+func learningShare(trainIdx, perm []int, frac float64) []int {
+	if frac >= 1 {
+		return trainIdx
+	}
+	m := max(2, int(frac*float64(len(trainIdx))))
+	sub := make([]int, m)
+	for q := range m {
+		sub[q] = trainIdx[perm[q]]
+	}
+	slices.Sort(sub)
+	return sub
+}
+
+// heldOutProbs grows a forest on trainDS and predicts testDS, shrunk (when
+// shrink) by a shrinkage fitted on the training digs' own out-of-bag
+// predictions, as a model of the whole history's is.
+func heldOutProbs(ctx context.Context, trainDS, testDS *Dataset, fopts Options, shrink bool) ([][]float64, error) {
+	forest, oob, err := Grow(ctx, trainDS, fopts)
+	if err != nil {
+		return nil, err
+	}
+	probs := forest.PredictDataset(testDS)
+	if shrink {
+		s := FitShrinkage(trainDS.Y, oob, len(trainDS.Classes))
+		for _, p := range probs {
+			s.Apply(p)
+		}
+	}
+	return probs, nil
 }
 
 // SavingCurves builds the model's and the baseline's dig-saving curves on
