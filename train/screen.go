@@ -174,67 +174,17 @@ func TrainScreen(ctx context.Context, log *features.Log, spec *features.FeatureS
 		}
 	}
 
-	// Rows: the history first, then the library.
-	var rows [][]float64
-	var y []int32
-	var own []bool
-	add := func(d *features.Dig, class int32) error {
-		v, _, err := spec.Extract(d, nil)
-		if err != nil {
-			return err
-		}
-		amp, size := ScreenExtras(d)
-		rows = append(rows, append(v, amp, size))
-		y = append(y, class)
-		return nil
+	rows, y, own, err := screenRows(log, spec, hist, lib, o.Hazards)
+	if err != nil {
+		return nil, err
 	}
-	for _, d := range hist {
-		h := IsHazard(d, o.Hazards)
-		own = append(own, h)
-		class := int32(0)
+	for _, h := range own {
 		if h {
-			class = 1
 			s.OwnHazardDigs++
 		}
-		if err := add(d, class); err != nil {
-			return nil, features.DigError(log.Name, d, err)
-		}
-	}
-	for i := range lib {
-		if err := add(&lib[i], 1); err != nil {
-			return nil, fmt.Errorf("train: the munitions library: %w", err)
-		}
-	}
-	grow := func(withSize bool) (*Forest, [][]float64, error) {
-		names := append(slices.Clone(spec.Names), NameAmplitude)
-		if withSize {
-			names = append(names, NameSize)
-		}
-		width := len(names)
-		ds := &Dataset{Names: names, Classes: screenClassNames, Cols: make([][]float64, width), Y: y}
-		for f := range width {
-			ds.Cols[f] = make([]float64, len(rows))
-			for i, r := range rows {
-				ds.Cols[f][i] = r[f]
-			}
-		}
-		return Grow(ctx, ds, Options{Trees: o.Trees, Seed: o.Seed ^ 0x5c2ee2, Progress: o.Progress})
 	}
 	fit := func(withSize bool) (*ScreenForest, error) {
-		f, oob, err := grow(withSize)
-		if err != nil {
-			return nil, err
-		}
-		scores := make([]float64, len(oob))
-		for i, p := range oob {
-			scores[i] = p[1]
-			if math.IsNaN(p[1]) {
-				scores[i] = 1 // seen by every tree: counted as flagged, never as missed
-			}
-		}
-		sf := &ScreenForest{Names: f.Names, forest: f, Likely: withSize, historyOOB: scores[:len(own)]}
-		sf.fitTiers(scores, own, o.MaxFlagged)
-		return sf, nil
+		return fitScreenForest(ctx, spec, rows, y, own, withSize, o)
 	}
 	plain, err := fit(false)
 	if err != nil {
@@ -247,6 +197,70 @@ func TrainScreen(ctx context.Context, log *features.Log, spec *features.FeatureS
 		}
 	}
 	return s, nil
+}
+
+// screenRows are the screen's training rows, the history's digs first
+// (class 1 when hazardous, own marking them) and then the library's (class
+// 1): each dig's features and the screen's extras (amplitude and size).
+func screenRows(log *features.Log, spec *features.FeatureSpec, hist []*features.Dig, lib []features.Dig, hazards []string) (rows [][]float64, y []int32, own []bool, err error) {
+	add := func(d *features.Dig, class int32) error {
+		v, _, err := spec.Extract(d, nil)
+		if err != nil {
+			return err
+		}
+		amp, size := ScreenExtras(d)
+		rows = append(rows, append(v, amp, size))
+		y = append(y, class)
+		return nil
+	}
+	for _, d := range hist {
+		h := IsHazard(d, hazards)
+		own = append(own, h)
+		class := int32(0)
+		if h {
+			class = 1
+		}
+		if err := add(d, class); err != nil {
+			return nil, nil, nil, features.DigError(log.Name, d, err)
+		}
+	}
+	for i := range lib {
+		if err := add(&lib[i], 1); err != nil {
+			return nil, nil, nil, fmt.Errorf("train: the munitions library: %w", err)
+		}
+	}
+	return rows, y, own, nil
+}
+
+// fitScreenForest grows one of the screen's forests on rows (with the size
+// feature when withSize) and fits its tiers on its out-of-bag scores.
+func fitScreenForest(ctx context.Context, spec *features.FeatureSpec, rows [][]float64, y []int32, own []bool, withSize bool, o ScreenOptions) (*ScreenForest, error) {
+	names := append(slices.Clone(spec.Names), NameAmplitude)
+	if withSize {
+		names = append(names, NameSize)
+	}
+	width := len(names)
+	ds := &Dataset{Names: names, Classes: screenClassNames, Cols: make([][]float64, width), Y: y}
+	for f := range width {
+		ds.Cols[f] = make([]float64, len(rows))
+		for i, r := range rows {
+			ds.Cols[f][i] = r[f]
+		}
+	}
+	f, oob, err := Grow(ctx, ds, Options{Trees: o.Trees, Seed: o.Seed ^ 0x5c2ee2, Progress: o.Progress})
+	if err != nil {
+		return nil, err
+	}
+	scores := make([]float64, len(oob))
+	for i, p := range oob {
+		scores[i] = p[1]
+		if math.IsNaN(p[1]) {
+			scores[i] = 1 // seen by every tree: counted as flagged, never as missed
+		}
+	}
+	sf := &ScreenForest{Names: f.Names, forest: f, Likely: withSize, historyOOB: scores[:len(own)]}
+	sf.fitTiers(scores, own, o.MaxFlagged)
+	return sf, nil
 }
 
 // fitTiers sets the tiers from the out-of-bag scores: rows first the
