@@ -23,7 +23,7 @@ func (r *Result) WriteCSV(w io.Writer) error {
 	cw := csv.NewWriter(w)
 	cw.Write(CSVColumns)
 	for _, b := range r.Bins {
-		rec := []string{edge(b.From), edge(b.To), strconv.Itoa(b.Digs), f4(b.Entropy), strconv.FormatBool(b.Ambiguous), b.Classes[0].Class, f4(b.Classes[0].Share)}
+		rec := []string{Edge(b.From), Edge(b.To), strconv.Itoa(b.Digs), f4(b.Entropy), strconv.FormatBool(b.Ambiguous), b.Classes[0].Class, f4(b.Classes[0].Share)}
 		if len(b.Classes) > 1 {
 			rec = append(rec, b.Classes[1].Class, f4(b.Classes[1].Share))
 		} else {
@@ -36,6 +36,8 @@ func (r *Result) WriteCSV(w io.Writer) error {
 }
 
 // edge writes a bin edge to two decimals at most, as typed: 84, 87.5.
-func edge(v float64) string { return strconv.FormatFloat(math.Round(v*100)/100, 'f', -1, 64) }
+// Edge writes a bin or range bound as every view of the ranges does: to
+// two decimals at most, with no trailing zeros.
+func Edge(v float64) string { return strconv.FormatFloat(math.Round(v*100)/100, 'f', -1, 64) }
 
 func f4(v float64) string { return strconv.FormatFloat(v, 'f', 4, 64) }

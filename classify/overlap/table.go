@@ -21,7 +21,7 @@ func (r *Result) WriteTable(w io.Writer, keepersNamed bool) {
 		fmt.Fprintln(w, "\nNo ambiguous ranges: every bin has a clear top class.")
 	}
 	for _, rg := range r.Ranges {
-		fmt.Fprintf(w, "\n%s to %s: %d digs, %.1f bits", edge(rg.From), edge(rg.To), rg.Digs, rg.Entropy)
+		fmt.Fprintf(w, "\n%s to %s: %d digs, %.1f bits", Edge(rg.From), Edge(rg.To), rg.Digs, rg.Entropy)
 		if rg.TrashOnly {
 			fmt.Fprint(w, ", only trash collides here: skipping costs nothing")
 		}

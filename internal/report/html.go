@@ -15,6 +15,7 @@ import (
 	"time"
 
 	"github.com/spade-detect/spade/classify"
+	"github.com/spade-detect/spade/classify/overlap"
 	"github.com/spade-detect/spade/features"
 	"github.com/spade-detect/spade/internal/atomicfile"
 	"github.com/spade-detect/spade/internal/cli"
@@ -348,14 +349,10 @@ func (s *Season) rangesSection() section {
 		if res := rg.Resolution; res != nil {
 			resolved = fmt.Sprintf("%s / %s", pct(res.ModelAccuracy), pct(res.MajorityAccuracy))
 		}
-		t.Rows = append(t.Rows, []string{fmt.Sprintf("%s to %s", edge(rg.From), edge(rg.To)), fmt.Sprint(rg.Digs), strings.Join(classes, ", "), strings.Join(chances, "; "), resolved})
+		t.Rows = append(t.Rows, []string{fmt.Sprintf("%s to %s", overlap.Edge(rg.From), overlap.Edge(rg.To)), fmt.Sprint(rg.Digs), strings.Join(classes, ", "), strings.Join(chances, "; "), resolved})
 	}
 	sec.Table = t
 	return sec
-}
-
-func edge(v float64) string {
-	return strings.TrimSuffix(strings.TrimRight(fmt.Sprintf("%.2f", v), "0"), ".")
 }
 
 func (s *Season) screenSection() section {
