@@ -34,8 +34,10 @@ type space struct {
 	ref   []float64 // row-major whitened training vectors
 	// index is built at the indexAfter-th search of a history of at least
 	// indexMinRows rows: the scan is faster below that length, and a run of
-	// a few readings would not repay the build (BenchmarkNearest).
-	index     *kdIndex
+	// a few readings would not repay the build (BenchmarkNearest). A model
+	// that holds its index (format 5) gives it here from the start, and
+	// ref is then nil.
+	index     kdIndex
 	indexOnce sync.Once
 	searches  atomic.Int64
 }
@@ -143,6 +145,9 @@ func spaceOf(b *train.Bundle) *space {
 // skipping row skip (-1 for none): by the k-d index on a long history, else
 // by the scan. Both give the same rows and distances.
 func (s *space) nearest(q []float64, k, skip int, out []Neighbour) []Neighbour {
+	if s.ref == nil {
+		return s.index.nearest(q, k, skip, out)
+	}
 	if len(s.ref) >= indexMinRows*s.dims && s.searches.Add(1) > indexAfter {
 		s.indexOnce.Do(func() { s.index = newIndex(s) })
 		return s.index.nearest(q, k, skip, out)
