@@ -248,9 +248,9 @@ func (c *Classifier) Classify(d *features.Dig) (*Result, error) {
 
 	r.Novelty = c.novelty(meanDistance(c.nb))
 	for _, n := range c.nb[:min(Neighbours, len(c.nb))] {
-		n.Dig = b.Training.IDs[n.index]
+		n.Dig = b.Training.ID(n.index)
 		n.Class = b.Classes[b.Training.Y[n.index]]
-		n.Date = b.Training.Dates[n.index]
+		n.Date = b.Training.Date(n.index)
 		r.Neighbours = append(r.Neighbours, n)
 	}
 	// Ranked is a stable sort of the classes, so its first is Argmax's.

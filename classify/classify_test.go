@@ -429,21 +429,21 @@ func TestPreparedModelClassifiesAlike(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	// And as classify loads it: vectors whitened as they are read, no
-	// out-of-bag rows.
+	// And as classify loads it: mapped, no out-of-bag rows, and the
+	// neighbour index the file holds in place of the vectors.
 	path := filepath.Join(t.TempDir(), "m.spade")
 	if err := os.WriteFile(path, data, 0o644); err != nil {
 		t.Fatal(err)
 	}
-	lean, err := train.LoadWith(path, train.LoadOptions{NoOutOfBag: true, Whitened: true})
+	lean, err := train.LoadWith(path, train.LoadOptions{NoOutOfBag: true, Whitened: true, Mapped: true})
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !lean.VectorsWhitened() || lean.Training.Flat() == nil {
-		t.Fatal("the vectors were not whitened as they loaded")
+	if lean.Training.Index == nil || lean.Training.Vectors != nil {
+		t.Fatal("classify's load did not search the stored index")
 	}
 	a := New(&plain, nil)
-	for name, other := range map[string]*train.Bundle{"loaded": loaded, "whitened as loaded": lean} {
+	for name, other := range map[string]*train.Bundle{"loaded": loaded, "as classify loads it": lean} {
 		c := New(other, nil)
 		for _, d := range demoReadings(t) {
 			ra, errA := a.Classify(&d)

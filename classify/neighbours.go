@@ -130,11 +130,14 @@ func (s *space) standardise(v, dst []float64) []float64 {
 	return train.Whitening{Mean: s.mean, Matrix: s.white}.Apply(v, dst)
 }
 
-// spaceOf is the bundle's neighbour space: its training vectors as they
-// are when the loader has whitened them (LoadOptions.Whitened), else
-// whitened here.
+// spaceOf is the bundle's neighbour space: the index a format 5 model
+// holds, else its training vectors as they are when the loader has
+// whitened them (LoadOptions.Whitened), else whitened here.
 func spaceOf(b *train.Bundle) *space {
 	t := &b.Training
+	if w := b.Whitening; w != nil && t.Index != nil {
+		return &space{dims: len(w.Mean), mean: w.Mean, white: w.Matrix, index: kdIndex{t.Index}}
+	}
 	if w := b.Whitening; b.VectorsWhitened() && w != nil && t.Flat() != nil {
 		return &space{dims: len(w.Mean), mean: w.Mean, white: w.Matrix, ref: t.Flat()}
 	}
@@ -227,12 +230,22 @@ const maxReference = 2000
 // referenceScores are training digs' own novelty scores, each leaving
 // itself out, sorted.
 func (s *space) referenceScores() []float64 {
-	n := len(s.ref) / s.dims
+	ref := s.ref
+	if ref == nil {
+		// Only the index holds the rows (a format 5 model that stores no
+		// scores, which this spade never writes): put them back in order.
+		x := s.index.Tree
+		ref = make([]float64, len(x.Points))
+		for t, row := range x.Perm {
+			copy(ref[int(row)*s.dims:], x.Points[t*s.dims:(t+1)*s.dims])
+		}
+	}
+	n := len(ref) / s.dims
 	step := max(1, (n+maxReference-1)/maxReference)
 	var scores []float64
 	buf := make([]Neighbour, 0, noveltyK)
 	for i := 0; i < n; i += step {
-		buf = s.nearest(s.ref[i*s.dims:(i+1)*s.dims], noveltyK, i, buf)
+		buf = s.nearest(ref[i*s.dims:(i+1)*s.dims], noveltyK, i, buf)
 		scores = append(scores, meanDistance(buf))
 	}
 	slices.Sort(scores)

@@ -117,7 +117,7 @@ func TestInterruptedSaveKeepsPreviousModel(t *testing.T) {
 func resign(payload []byte) []byte {
 	var out bytes.Buffer
 	out.WriteString(magic)
-	out.Write([]byte{FormatVersion, 0, 0, 0})
+	out.Write([]byte{format4, 0, 0, 0})
 	n := uint64(len(payload))
 	for range 8 {
 		out.WriteByte(byte(n))
@@ -152,11 +152,12 @@ func FuzzUnmarshal(f *testing.F) {
 	screened, _ := small.Marshal()
 	f.Add(screened)
 	f.Add(encodeV3(small))
+	f.Add(encodeV4(small))
 	f.Add(good[:len(good)/2])
 	f.Add(good[headerLen : len(good)-32])
 	f.Add([]byte("SPADEMDL"))
 	f.Fuzz(func(t *testing.T, data []byte) {
-		for _, d := range [][]byte{data, resign(data)} {
+		for _, d := range [][]byte{data, resign(data), reseal(data)} {
 			b, err := Unmarshal(d)
 			if err != nil {
 				if !errors.Is(err, ErrNotModel) && !errors.Is(err, ErrCorrupt) && !errors.Is(err, ErrVersion) {

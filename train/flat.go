@@ -184,9 +184,18 @@ func (f *Forest) NumTrees() int { return len(f.flat.roots) }
 func (f *Forest) Nodes() int { return len(f.flat.nodes) }
 
 // Tree is tree t rebuilt in the grown form (its leaves numbered in node
-// order), for golearn's trees and for tests.
+// order), for golearn's trees and for tests; nil when its nodes are not a
+// tree (some node two splits' child), which a format 5 load leaves to be
+// checked here, as a walk does not need it (checkWalk).
 func (f *Forest) Tree(t int) *Tree {
 	ff := f.flat
+	features := len(f.Names)
+	if features == 0 {
+		features = maxFeatures // not yet named: any feature a node can hold
+	}
+	if _, _, _, err := ff.checkTree(t, features, nil); err != nil {
+		return nil
+	}
 	lo, hi := ff.span(t)
 	tr := &Tree{LeafStart: []int32{0}}
 	for _, n := range ff.nodes[lo:hi] {

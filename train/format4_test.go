@@ -3,7 +3,11 @@ package train
 import (
 	"bytes"
 	"context"
+	"encoding/binary"
+	"encoding/json"
 	"errors"
+	"fmt"
+	"hash/crc32"
 	"math"
 	"os"
 	"path/filepath"
@@ -47,38 +51,75 @@ func sameModel(t *testing.T, name string, a, b *Bundle, log *features.Log) {
 	}
 }
 
-// TestFormatsLoadAlike: a bundle written as format 2, 3 and 4 loads to the
-// same training digs, probabilities and screen scores; format 4 is read
-// the same from a file (streamed) as from bytes, and again gives the same
-// bytes; a mixed-leaf forest (minimum leaf 4) round-trips too.
+// encodeV4 writes a bundle as spade wrote format 4: one stream, a CRC-32C
+// at its end.
+func encodeV4(b *Bundle) []byte {
+	lean := *b
+	lean.Training = Training{}
+	meta, err := json.Marshal(metadata{Format: format4, Bundle: &lean})
+	if err != nil {
+		panic(err)
+	}
+	var rest bytes.Buffer
+	encode4(&rest, b)
+	out := []byte(magic)
+	out = binary.LittleEndian.AppendUint16(out, format4)
+	out = binary.LittleEndian.AppendUint16(out, 0)
+	out = binary.LittleEndian.AppendUint64(out, uint64(4+len(meta)+rest.Len()))
+	out = binary.LittleEndian.AppendUint32(out, uint32(len(meta)))
+	out = append(append(out, meta...), rest.Bytes()...)
+	return binary.LittleEndian.AppendUint32(out, crc32.Checksum(out, castagnoli))
+}
+
+// TestFormatsLoadAlike: a bundle written as format 2, 3, 4 and 5 loads to
+// the same training digs, probabilities and screen scores, and saved again
+// gives format 5's bytes; format 4 is read the same from a file (streamed)
+// as from bytes, and format 5 the same read, mapped, or copied as a
+// big-endian machine copies it; a mixed-leaf forest (minimum leaf 4)
+// round-trips too.
 func TestFormatsLoadAlike(t *testing.T) {
 	b, log := smallScreenModel(t, features.LabelBoth)
-	four, err := b.Marshal()
+	five, err := b.Marshal()
 	if err != nil {
 		t.Fatal(err)
 	}
-	if bytes.Contains(four, []byte(`"SR-`)) || bytes.Contains(four, []byte(`"vectors"`)) {
-		t.Error("format 4 still writes the training digs as JSON")
+	four := encodeV4(b)
+	for name, data := range map[string][]byte{"format 4": four, "format 5": five} {
+		if bytes.Contains(data, []byte(`"SR-`)) || bytes.Contains(data, []byte(`"vectors"`)) {
+			t.Errorf("%s writes the training digs as JSON", name)
+		}
 	}
-	path := filepath.Join(t.TempDir(), "m.spade")
-	if err := os.WriteFile(path, four, 0o644); err != nil {
-		t.Fatal(err)
+	dir := t.TempDir()
+	for name, data := range map[string][]byte{"format 4": four, "format 5": five} {
+		path := filepath.Join(dir, strings.ReplaceAll(name, " ", ""))
+		if err := os.WriteFile(path, data, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		for _, o := range []LoadOptions{{}, {Mapped: true}} {
+			got, err := LoadWith(path, o)
+			if err != nil {
+				t.Fatalf("%s %+v: %v", name, o, err)
+			}
+			sameModel(t, fmt.Sprintf("%s from a file %+v", name, o), b, got, log)
+		}
 	}
-	streamed, err := Load(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	for name, data := range map[string][]byte{"format 2": encodeV2(b), "format 3": encodeV3(b), "format 4": four} {
+	for name, data := range map[string][]byte{"format 2": encodeV2(b), "format 3": encodeV3(b), "format 4": four, "format 5": five} {
 		got, err := Unmarshal(data)
 		if err != nil {
 			t.Fatalf("%s: %v", name, err)
 		}
 		sameModel(t, name, b, got, log)
-		if again, _ := got.Marshal(); !bytes.Equal(again, four) {
+		if again, _ := got.Marshal(); !bytes.Equal(again, five) {
 			t.Errorf("%s: loaded and saved again, the bytes differ", name)
 		}
 	}
-	sameModel(t, "format 4 streamed", b, streamed, log)
+	zeroCopy = false
+	copied, err := Unmarshal(five)
+	zeroCopy = hostLittleEndian
+	if err != nil {
+		t.Fatal(err)
+	}
+	sameModel(t, "format 5 copied", b, copied, log)
 
 	ds, spec := demo(t)
 	mixed, err := TrainDataset(context.Background(), ds, spec, TrainOptions{Label: features.LabelBoth, Forest: Options{Trees: 6, Seed: 3, MinLeaf: 4}})
@@ -98,12 +139,12 @@ func TestFormatsLoadAlike(t *testing.T) {
 
 // TestLoadWithoutOutOfBag: classify's load leaves the out-of-bag rows out;
 // all else is as a whole load, and such a bundle refuses to be saved (it
-// would lose them). Formats 3 and 4 alike.
+// would lose them). Formats 3, 4 and 5 alike.
 func TestLoadWithoutOutOfBag(t *testing.T) {
 	b, log := smallScreenModel(t, features.LabelBoth)
 	dir := t.TempDir()
-	four, _ := b.Marshal()
-	for name, data := range map[string][]byte{"format 3": encodeV3(b), "format 4": four} {
+	five, _ := b.Marshal()
+	for name, data := range map[string][]byte{"format 3": encodeV3(b), "format 4": encodeV4(b), "format 5": five} {
 		path := filepath.Join(dir, strings.ReplaceAll(name, " ", ""))
 		os.WriteFile(path, data, 0o644)
 		got, err := LoadWith(path, LoadOptions{NoOutOfBag: true})
@@ -126,7 +167,7 @@ func TestLoadWithoutOutOfBag(t *testing.T) {
 // refuses, and a damaged payload is named as such (checksum mismatch),
 // not as whatever the decoder tripped on first.
 func TestStreamedLoadRejectsDamage(t *testing.T) {
-	good, _ := trainSmall(t, 4, 1).Marshal()
+	good := encodeV4(trainSmall(t, 4, 1))
 	flip := bytes.Clone(good)
 	flip[len(flip)/3] ^= 0x40 // in the forest's nodes
 	meta := bytes.Clone(good)
@@ -230,6 +271,9 @@ func TestMalformedForestRefused(t *testing.T) {
 		if _, err := Unmarshal(data); !errors.Is(err, ErrCorrupt) {
 			t.Errorf("%s: %v", name, err)
 		}
+		if _, err := Unmarshal(encodeV4(&bad)); !errors.Is(err, ErrCorrupt) {
+			t.Errorf("%s, format 4: %v", name, err)
+		}
 	}
 	// The unmutated forest, through the same path, loads.
 	data, _ := b.Marshal()
@@ -242,4 +286,55 @@ func TestMalformedForestRefused(t *testing.T) {
 func sameTraining(a, b *Training) bool {
 	return reflect.DeepEqual(a.IDs, b.IDs) && reflect.DeepEqual(a.Dates, b.Dates) && reflect.DeepEqual(a.Y, b.Y) &&
 		reflect.DeepEqual(a.Vectors, b.Vectors) && reflect.DeepEqual(a.OutOfBag, b.OutOfBag)
+}
+
+// TestFullyGrownForestChecked: a fully grown forest (pure leaves only) is
+// checked at a format 5 load by checkWalk, the fast way, and refused when
+// a walk could leave its tree or its arrays. Two splits sharing children
+// leave every walk safe, so that load takes them; the tree is then not
+// rebuilt (Forest.Tree and golearn's tree are nil), and format 4's load,
+// which checks the shape in full, refuses it.
+func TestFullyGrownForestChecked(t *testing.T) {
+	b := trainSmall(t, 3, 5)
+	ff := b.Forest.flat
+	if len(ff.leafCls) != 0 {
+		t.Fatal("mixed leaves in a fully grown forest")
+	}
+	split := slices.IndexFunc(ff.nodes[:ff.roots[1]], func(n flatNode) bool { return n.kind() < leafKind && n.rest() > 2 })
+	pure := slices.IndexFunc(ff.nodes[:ff.roots[1]], func(n flatNode) bool { return n.kc == pureKC })
+	second := slices.IndexFunc(ff.nodes[split+1:ff.roots[1]], func(n flatNode) bool { return n.kind() < leafKind }) + split + 1
+	orig := ff.nodes[split]
+	mutated := func(mutate func(n []flatNode)) *Bundle {
+		bad := *b
+		badFF := *ff
+		badFF.nodes = slices.Clone(ff.nodes)
+		mutate(badFF.nodes)
+		bad.Forest = &Forest{Names: b.Forest.Names, Classes: b.Forest.Classes, flat: &badFF}
+		return &bad
+	}
+	for name, mutate := range map[string]func(n []flatNode){
+		"child before its parent": func(n []flatNode) { n[split].kc = orig.kc&^restMask | uint32(split) },
+		"child past the tree":     func(n []flatNode) { n[split].kc = orig.kc&^restMask | uint32(ff.roots[1]) },
+		"feature out of range":    func(n []flatNode) { n[split].kc = uint32(len(b.Spec.Names))<<restBits | uint32(orig.rest()) },
+		"class out of range":      func(n []flatNode) { n[pure].lo = uint32(ff.K) },
+		"zero count":              func(n []flatNode) { n[pure].hi = 0 },
+		"unknown kind":            func(n []flatNode) { n[pure].kc = pureKC | 7 },
+	} {
+		data, _ := mutated(mutate).Marshal()
+		if _, err := Unmarshal(data); !errors.Is(err, ErrCorrupt) {
+			t.Errorf("%s: %v", name, err)
+		}
+	}
+	shared := mutated(func(n []flatNode) { n[split].kc = orig.kc&^restMask | uint32(n[second].rest()) })
+	data, _ := shared.Marshal()
+	got, err := Unmarshal(data)
+	if err != nil {
+		t.Fatalf("shared children, walk-safe: %v", err)
+	}
+	if got.Forest.Tree(0) != nil || got.Forest.Tree(1) == nil {
+		t.Error("tree 0 rebuilt though not a tree, or tree 1 not rebuilt")
+	}
+	if _, err := Unmarshal(encodeV4(shared)); !errors.Is(err, ErrCorrupt) {
+		t.Errorf("format 4 took shared children: %v", err)
+	}
 }

@@ -84,9 +84,13 @@ func FromInstances(g base.FixedDataGrid) (*Dataset, error) {
 // class distribution at every node (an inner node's is the sum of its
 // children's) and the majority class as Class. attrs are the feature
 // attributes in the forest's order and classAttr the class attribute, as
-// Dataset.Instances makes them.
+// Dataset.Instances makes them. It is nil when tree t, read from a hostile
+// model file, is not a tree (see Forest.Tree).
 func (f *Forest) DecisionTree(t int, attrs []base.Attribute, classAttr base.Attribute) *trees.DecisionTreeNode {
 	tr := f.Tree(t)
+	if tr == nil {
+		return nil
+	}
 	var build func(i int32) *trees.DecisionTreeNode
 	build = func(i int32) *trees.DecisionTreeNode {
 		n := &trees.DecisionTreeNode{ClassDist: map[string]int{}, ClassAttr: classAttr}

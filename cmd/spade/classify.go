@@ -93,10 +93,10 @@ func runClassify(ctx context.Context, g *globalOptions, opts classifyOptions, ar
 	case opts.top < 1:
 		return usagef("--top must be at least 1, got %d", opts.top)
 	}
-	// classify needs no out-of-bag rows (10 MB at 100,000 digs) and reads
-	// the training vectors only whitened: they are whitened as they load,
-	// in place, rather than copied.
-	bundle, err := train.LoadWith(opts.model, train.LoadOptions{NoOutOfBag: true, Whitened: true})
+	// classify needs no out-of-bag rows (10 MB at 100,000 digs) and the
+	// training vectors only whitened (format 5 stores them so, indexed):
+	// the file is mapped, and the rest of it never read (train.LoadOptions).
+	bundle, err := train.LoadWith(opts.model, train.LoadOptions{NoOutOfBag: true, Whitened: true, Mapped: true})
 	if err != nil {
 		return err
 	}

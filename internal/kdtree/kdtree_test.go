@@ -3,8 +3,8 @@ package kdtree
 import (
 	"math"
 	"math/rand/v2"
-	"strings"
 	"slices"
+	"strings"
 	"testing"
 )
 
