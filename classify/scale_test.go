@@ -53,7 +53,7 @@ func scaleModel(b *testing.B, n int) string {
 }
 
 // classifyLoad is how spade classify loads a model.
-var classifyLoad = train.LoadOptions{NoOutOfBag: true, Whitened: true}
+var classifyLoad = train.LoadOptions{NoOutOfBag: true, Whitened: true, Mapped: true}
 
 // BenchmarkScaleLoad: a model's load as classify does it, and the
 // classifier made from it (issue 15: at 100,000 digs no more than 3× the

@@ -47,7 +47,7 @@ import (
 // The checksums are by section and block so that a load checks, on every
 // core, just the sections it uses: classify leaves out the out-of-bag
 // probabilities and the vectors as they were (it searches the index), a
-// third of a large model's file, which it then never reads.
+// quarter of a large model's file, which it then never reads.
 const format5 = 5
 
 // blockSize is the span of one block checksum.
