@@ -244,50 +244,37 @@ func view[T any](b []byte) ([]T, bool) {
 	return unsafe.Slice((*T)(unsafe.Pointer(&b[0])), len(b)/size), true
 }
 
-func int32s(b []byte) []int32 {
-	if v, ok := view[int32](b); ok {
+// viewOrDecode is view, or where that cannot be, each item decoded from
+// its bytes (as many as it has in memory, which is the file's size of it
+// for every type here).
+func viewOrDecode[T any](b []byte, decode func(p []byte) T) []T {
+	if v, ok := view[T](b); ok {
 		return v
 	}
-	v := make([]int32, len(b)/4)
+	var t T
+	size := int(unsafe.Sizeof(t))
+	v := make([]T, len(b)/size)
 	for i := range v {
-		v[i] = int32(binary.LittleEndian.Uint32(b[4*i:]))
+		v[i] = decode(b[size*i:])
 	}
 	return v
+}
+
+func int32s(b []byte) []int32 {
+	return viewOrDecode(b, func(p []byte) int32 { return int32(binary.LittleEndian.Uint32(p)) })
 }
 
 func float64s(b []byte) []float64 {
-	if v, ok := view[float64](b); ok {
-		return v
-	}
-	v := make([]float64, len(b)/8)
-	for i := range v {
-		v[i] = math.Float64frombits(binary.LittleEndian.Uint64(b[8*i:]))
-	}
-	return v
+	return viewOrDecode(b, func(p []byte) float64 { return math.Float64frombits(binary.LittleEndian.Uint64(p)) })
 }
 
-func flatNodes(b []byte) []flatNode {
-	if v, ok := view[flatNode](b); ok {
-		return v
-	}
-	v := make([]flatNode, len(b)/12)
-	for i := range v {
-		v[i] = nodeAt(b[12*i:])
-	}
-	return v
-}
+func flatNodes(b []byte) []flatNode { return viewOrDecode(b, nodeAt) }
 
 func indexNodes(b []byte) []kdtree.Node {
-	if v, ok := view[kdtree.Node](b); ok {
-		return v
-	}
-	v := make([]kdtree.Node, len(b)/24)
-	for i := range v {
-		p := b[24*i:]
-		v[i] = kdtree.Node{Split: math.Float64frombits(binary.LittleEndian.Uint64(p)),
+	return viewOrDecode(b, func(p []byte) kdtree.Node {
+		return kdtree.Node{Split: math.Float64frombits(binary.LittleEndian.Uint64(p)),
 			Dim: int32(binary.LittleEndian.Uint32(p[8:])), Lo: int32(binary.LittleEndian.Uint32(p[12:])), Hi: int32(binary.LittleEndian.Uint32(p[16:]))}
-	}
-	return v
+	})
 }
 
 // file5 is a format 5 file being read: its bytes and its sections'.
@@ -613,14 +600,7 @@ func strings5(offsets, all []byte, n int) (packed, error) {
 	if _, ok := view[byte](all); ok && len(all) > 0 {
 		p.all = unsafe.String(&all[0], len(all))
 	}
-	if v, ok := view[uint32](offsets); ok {
-		p.offsets = v
-	} else {
-		p.offsets = make([]uint32, n+1)
-		for i := range p.offsets {
-			p.offsets[i] = binary.LittleEndian.Uint32(offsets[4*i:])
-		}
-	}
+	p.offsets = viewOrDecode(offsets, binary.LittleEndian.Uint32)
 	// In order when no offset is below the one before: the differences'
 	// sign bits, gathered without a branch.
 	var back uint64
