@@ -6,9 +6,11 @@ import (
 	"fmt"
 	"io"
 	"runtime"
+	"runtime/debug"
 	"sync"
 
 	"github.com/spade-detect/spade/features"
+	"github.com/spade-detect/spade/train"
 )
 
 // StreamBatch is how many readings are read before they are classified
@@ -57,11 +59,14 @@ func Stream(ctx context.Context, c *Classifier, next func() (features.Dig, error
 			go func() {
 				defer wg.Done()
 				i := wi
+				// A fault reading a mapped model (a file cut short under
+				// it) is a panic here rather than the end of the process.
+				defer debug.SetPanicOnFault(debug.SetPanicOnFault(true))
 				// A panic in a worker is turned into this reading's error,
 				// reported with its line like any other: never a stack trace.
 				defer func() {
 					if r := recover(); r != nil && i < len(batch) {
-						errs[i] = fmt.Errorf("internal error classifying this reading: %v (please report it)", r)
+						errs[i] = panicError(r)
 					}
 				}()
 				for ; i < len(batch); i += len(clones) {
@@ -87,6 +92,18 @@ func Stream(ctx context.Context, c *Classifier, next func() (features.Dig, error
 		}
 	}
 	return nil
+}
+
+// ErrModelChanged is a fault reading the model where it lies (train.
+// LoadOptions.Mapped): its file was cut short or rewritten during the run.
+var ErrModelChanged = errors.New("the model file was changed or cut short while classify read it; run again, and replace a model by writing the new one beside it and renaming it over the old (as spade train -o does), never by copying into it")
+
+// panicError is a worker's panic as this reading's error.
+func panicError(r any) error {
+	if e, ok := r.(interface{ Addr() uintptr }); ok && train.InMappedModel(e.Addr()) {
+		return ErrModelChanged
+	}
+	return fmt.Errorf("internal error classifying this reading: %v (please report it)", r)
 }
 
 // StreamTo classifies readings as Stream does into out, and finishes it;

@@ -661,6 +661,29 @@ func load5(head []byte, f *os.File, plen uint64, o LoadOptions) (*Bundle, error)
 	return decode5(data, o)
 }
 
+// addrRange is a mapping's start and length.
+type addrRange struct{ start, size uintptr }
+
+// mappings are the model files mapped now.
+var mappings struct {
+	sync.Mutex
+	ranges []addrRange
+}
+
+// InMappedModel is whether addr lies in a model file mapped by a load
+// (LoadOptions.Mapped): a fault there (see runtime/debug.SetPanicOnFault)
+// means the file was cut short under it, not a bug.
+func InMappedModel(addr uintptr) bool {
+	mappings.Lock()
+	defer mappings.Unlock()
+	for _, m := range mappings.ranges {
+		if addr-m.start < m.size {
+			return true
+		}
+	}
+	return false
+}
+
 // aligned is n zero bytes at a multiple of 8 in memory.
 func aligned(n uint64) []byte {
 	if n == 0 {

@@ -4,7 +4,9 @@ package train
 
 import (
 	"os"
+	"slices"
 	"syscall"
+	"unsafe"
 )
 
 // mapFile maps a model file's first size bytes into memory, private and
@@ -20,5 +22,14 @@ func mapFile(f *os.File, size int) (data []byte, unmap func(), err error) {
 	if err != nil {
 		return nil, nil, err
 	}
-	return data, func() { syscall.Munmap(data) }, nil
+	r := addrRange{uintptr(unsafe.Pointer(unsafe.SliceData(data))), uintptr(len(data))}
+	mappings.Lock()
+	mappings.ranges = append(mappings.ranges, r)
+	mappings.Unlock()
+	return data, func() {
+		mappings.Lock()
+		mappings.ranges = slices.DeleteFunc(mappings.ranges, func(m addrRange) bool { return m == r })
+		mappings.Unlock()
+		syscall.Munmap(data)
+	}, nil
 }

@@ -66,6 +66,7 @@ id=N adds the display ID, depth=CM the depth (the ordnance screen then judges
 by apparent size), gHZ=PHASE/AMP a bare-ground reading beside the target.
 Files of any size stream through in constant memory (the model's forests and
 index, 85 MB at 100,000 digs, and some 20 MB more); ids need not be unique.
+The model file is read in place while classify runs: replace it by renaming.
 On a bad row (without --skip-bad) every reading before it is classified and
 written, in order, then the run stops with the row's error and exit 1.`,
 		Example: "  spade classify --model my.spade new.csv\n" +
