@@ -75,6 +75,11 @@ func Stream(ctx context.Context, c *Classifier, next func() (features.Dig, error
 			}()
 		}
 		wg.Wait()
+		// A model mapped where it lies and written to meanwhile: these
+		// results may be of bytes no load checked.
+		if c.bundle.Changed() {
+			return ErrModelChanged
+		}
 		for i := range batch {
 			if errs[i] != nil {
 				var pe *features.ParseError
@@ -94,8 +99,9 @@ func Stream(ctx context.Context, c *Classifier, next func() (features.Dig, error
 	return nil
 }
 
-// ErrModelChanged is a fault reading the model where it lies (train.
-// LoadOptions.Mapped): its file was cut short or rewritten during the run.
+// ErrModelChanged is a model read where it lies (train.LoadOptions.Mapped)
+// whose file was cut short or written to during the run: a fault reading
+// it, or train.Bundle.Changed after a batch.
 var ErrModelChanged = errors.New("the model file was changed or cut short while classify read it; run again, and replace a model by writing the new one beside it and renaming it over the old (as spade train -o does), never by copying into it")
 
 // panicError is a worker's panic as this reading's error.

@@ -180,7 +180,16 @@ type Bundle struct {
 	partial bool
 	// whitened: the training vectors were loaded whitened.
 	whitened bool
+	// changed tells, for a mapped load, whether the file has been written
+	// to since.
+	changed func() bool
 }
+
+// Changed is whether the file of a model loaded mapped (LoadOptions.Mapped)
+// has been written to since: its bytes, which the bundle's arrays are,
+// would then be the new file's, unchecked. Always false for a model read
+// into memory.
+func (b *Bundle) Changed() bool { return b.changed != nil && b.changed() }
 
 // VectorsWhitened is whether Training.Vectors hold the vectors whitened by
 // Whitening (LoadOptions.Whitened) rather than as they were.

@@ -138,7 +138,9 @@ func shares(counts []int32) []float64 {
 func (ff *flatForest) addTree(t int, x []float64, p []float64) {
 	root := ff.roots[t]
 	n := ff.nodes[root]
-	for k := n.kind(); k < leafKind; k = n.kind() {
+	// A checked tree's walk ends within its nodes; the count stops one
+	// over nodes changed since (a mapped file rewritten under it).
+	for k, steps := n.kind(), 0; k < leafKind && steps < maxTreeNodes; k, steps = n.kind(), steps+1 {
 		next := root + n.rest()
 		if x[k] > n.thr() {
 			next++
@@ -238,7 +240,9 @@ func (ff *flatForest) addAll(x []float64, p []float64) {
 			root[j] = ff.roots[t0+j]
 			at[j] = nodes[root[j]]
 		}
-		for more := true; more; {
+		// A checked tree's walk ends within its nodes; the count stops
+		// one over nodes changed since (a mapped file rewritten under it).
+		for more, steps := true, 0; more && steps < maxTreeNodes; steps++ {
 			more = false
 			for j := range m {
 				if n := at[j]; n.kind() < leafKind {

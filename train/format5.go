@@ -635,12 +635,14 @@ func load5(head []byte, f *os.File, plen uint64, o LoadOptions) (*Bundle, error)
 			return nil, fmt.Errorf("%w: %d bytes after the last section", ErrCorrupt, uint64(st.Size())-size)
 		}
 		if o.Mapped {
-			if data, unmap, err := mapFile(f, int(size)); err == nil {
+			if data, unmap, changed, err := mapFile(f, int(size)); err == nil {
 				b, err := decode5(data, o)
 				if err != nil {
 					unmap()
+					return nil, err
 				}
-				return b, err
+				b.changed = changed
+				return b, nil
 			}
 		}
 		data := aligned(size)

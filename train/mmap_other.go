@@ -8,4 +8,6 @@ import (
 )
 
 // mapFile is not available here: the loader reads the file instead.
-func mapFile(*os.File, int) ([]byte, func(), error) { return nil, nil, errors.ErrUnsupported }
+func mapFile(*os.File, int) ([]byte, func(), func() bool, error) {
+	return nil, nil, nil, errors.ErrUnsupported
+}

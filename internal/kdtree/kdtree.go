@@ -211,7 +211,7 @@ func (x *Tree) Nearest(q []float64, k, skip int, out []Hit) []Hit {
 		} else {
 			off = buf[:x.Dims]
 		}
-		out = x.search(0, q, k, skip, out, off, 0)
+		out = x.search(0, q, k, skip, out, off, 0, 0)
 	}
 	for i := range out {
 		out[i].Dist = math.Sqrt(out[i].Dist)
@@ -219,9 +219,14 @@ func (x *Tree) Nearest(q []float64, k, skip int, out []Hit) []Hit {
 	return out
 }
 
-// search visits node, whose cell is at squared distance rd from q, with
-// off[d] q's offset outside the cell along dimension d.
-func (x *Tree) search(node int32, q []float64, k, skip int, out []Hit, off []float64, rd float64) []Hit {
+// search visits node, depth splits down, whose cell is at squared distance
+// rd from q, with off[d] q's offset outside the cell along dimension d.
+// It goes no deeper than a checked tree can be, should the nodes have
+// changed since they were checked (a mapped file rewritten under it).
+func (x *Tree) search(node int32, q []float64, k, skip int, out []Hit, off []float64, rd float64, depth int) []Hit {
+	if depth > maxDepth {
+		return out
+	}
 	nd := x.Nodes[node]
 	if nd.Dim < 0 {
 		worst := math.Inf(1)
@@ -249,12 +254,12 @@ func (x *Tree) search(node int32, q []float64, k, skip int, out []Hit, off []flo
 	if e > 0 {
 		near, far = far, near
 	}
-	out = x.search(near, q, k, skip, out, off, rd)
+	out = x.search(near, q, k, skip, out, off, rd, depth+1)
 	old := off[nd.Dim]
 	rdFar := rd - old*old + e*e
 	if len(out) < k || rdFar <= out[k-1].Dist*boundSlack {
 		off[nd.Dim] = e
-		out = x.search(far, q, k, skip, out, off, rdFar)
+		out = x.search(far, q, k, skip, out, off, rdFar, depth+1)
 		off[nd.Dim] = old
 	}
 	return out
