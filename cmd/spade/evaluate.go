@@ -77,7 +77,7 @@ func (o *evaluateOptions) check() error {
 }
 
 func runEvaluate(ctx context.Context, g *globalOptions, opts evaluateOptions, args []string) error {
-	if err := report.PrepareFolder(opts.report, args[0], opts.values.file); err != nil {
+	if err := report.PrepareFolder(opts.report, map[string]string{"-o": opts.output}, args[0], opts.values.file); err != nil {
 		return err
 	}
 	h, err := g.readHistory(&opts.in, &opts.values, &opts.format, opts.check, map[string]string{"-o": opts.output}, args[0])

@@ -8,9 +8,11 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"maps"
 	"math"
 	"os"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -129,8 +131,18 @@ func OneLine(err error) string {
 // inputs: the same file by device and inode when the output exists, or
 // the same cleaned absolute path when it does not yet ("./digs.csv" and
 // "dir/../digs.csv" are digs.csv). Nothing the user owns is overwritten.
-// "-" and empty names are standard streams or unset, and never clash.
+// "-" and empty names are standard streams or unset, and never clash. Two
+// outputs that name one file are refused too: one would overwrite the
+// other.
 func CheckOutputs(outputs map[string]string, inputs ...string) error {
+	flags := slices.Sorted(maps.Keys(outputs))
+	for i, a := range flags {
+		for _, b := range flags[i+1:] {
+			if sameFile(outputs[a], outputs[b]) {
+				return Usagef("%s %s and %s %s name the same file: one would overwrite the other; choose another for one of them", a, outputs[a], b, outputs[b])
+			}
+		}
+	}
 	for flag, out := range outputs {
 		if out == "" || out == "-" {
 			continue
@@ -138,24 +150,29 @@ func CheckOutputs(outputs map[string]string, inputs ...string) error {
 		if err := writableFolder(flag, out); err != nil {
 			return err
 		}
-		oi, oerr := os.Stat(out)
-		oabs, _ := filepath.Abs(out)
 		for _, in := range inputs {
-			if in == "" || in == "-" {
-				continue
-			}
-			same := false
-			if ii, err := os.Stat(in); err == nil && oerr == nil {
-				same = os.SameFile(oi, ii)
-			} else if iabs, err := filepath.Abs(in); err == nil {
-				same = iabs == oabs
-			}
-			if same {
+			if sameFile(out, in) {
 				return Usagef("%s %s names the input %s: it would be overwritten; choose another output file", flag, out, in)
 			}
 		}
 	}
 	return nil
+}
+
+// sameFile is whether a and b name one file: by device and inode when
+// both exist, else by cleaned absolute path. "-" and "" name none.
+func sameFile(a, b string) bool {
+	if a == "" || a == "-" || b == "" || b == "-" {
+		return false
+	}
+	ai, aerr := os.Stat(a)
+	bi, berr := os.Stat(b)
+	if aerr == nil && berr == nil {
+		return os.SameFile(ai, bi)
+	}
+	aabs, err1 := filepath.Abs(a)
+	babs, err2 := filepath.Abs(b)
+	return err1 == nil && err2 == nil && aabs == babs
 }
 
 // writableFolder checks, before the work, that an output's folder exists

@@ -33,6 +33,11 @@ func TestCheckOutputsRefusesAnInput(t *testing.T) {
 	if left, _ := filepath.Glob(filepath.Join(dir, ".spade-check-*")); len(left) > 0 {
 		t.Errorf("the folder check left %v", left)
 	}
+	// Two outputs naming one file, by two spellings.
+	twice := map[string]string{"-o": filepath.Join(dir, "m.spade"), "--plot": filepath.Join(dir, "sub", "..", "m.spade")}
+	if err := CheckOutputs(twice, in); !errors.As(err, &ue) || !strings.Contains(err.Error(), "name the same file") {
+		t.Errorf("two outputs, one file: %v", err)
+	}
 }
 
 func TestOneLine(t *testing.T) {

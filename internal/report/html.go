@@ -7,6 +7,7 @@ import (
 	"html/template"
 	"image/png"
 	"io"
+	"maps"
 	"os"
 	"path/filepath"
 	"slices"
@@ -414,21 +415,22 @@ func (s *Season) classSection() section {
 }
 
 // PrepareFolder makes dir (and its parents) for a report, and refuses,
-// before any work, a report whose files would overwrite one of the inputs.
-// An empty dir asks for no report: nothing to do.
-func PrepareFolder(dir string, inputs ...string) error {
+// before any work, a report whose files would overwrite one of the inputs
+// or be one of the command's other outputs (others, by flag). An empty dir
+// asks for no report: nothing to do.
+func PrepareFolder(dir string, others map[string]string, inputs ...string) error {
 	if dir == "" {
 		return nil
 	}
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return fmt.Errorf("--report %s: %w", dir, features.PathCause(err))
 	}
+	outputs := map[string]string{}
+	maps.Copy(outputs, others)
 	for _, f := range Files() {
-		if err := cli.CheckOutputs(map[string]string{"--report": filepath.Join(dir, f)}, inputs...); err != nil {
-			return err
-		}
+		outputs["--report "+dir+" ("+f+")"] = filepath.Join(dir, f)
 	}
-	return nil
+	return cli.CheckOutputs(outputs, inputs...)
 }
 
 // Today is the date a report says it was made: SOURCE_DATE_EPOCH's when

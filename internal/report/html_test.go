@@ -212,11 +212,12 @@ func TestReportSaysWhenTheHazardCheckIsUnavailable(t *testing.T) {
 }
 
 // TestPrepareFolderRefusesToOverwriteAnInput: a log named like one of the
-// report's files in the report's folder is refused before any work, and
-// the folder is made when it is missing.
+// report's files in the report's folder is refused before any work, as is
+// another output of the command named like one; the folder is made when
+// it is missing.
 func TestPrepareFolderRefusesToOverwriteAnInput(t *testing.T) {
 	dir := filepath.Join(t.TempDir(), "season", "2026")
-	if err := PrepareFolder(dir, "digs.csv"); err != nil {
+	if err := PrepareFolder(dir, nil, "digs.csv"); err != nil {
 		t.Fatal(err)
 	}
 	if fi, err := os.Stat(dir); err != nil || !fi.IsDir() {
@@ -226,8 +227,13 @@ func TestPrepareFolderRefusesToOverwriteAnInput(t *testing.T) {
 	if err := os.WriteFile(input, []byte("dig,material\n"), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	if err := PrepareFolder(dir, input); err == nil || !strings.Contains(err.Error(), "would be overwritten") {
+	if err := PrepareFolder(dir, nil, input); err == nil || !strings.Contains(err.Error(), "would be overwritten") {
 		t.Errorf("an input at %s: %v", input, err)
+	}
+	// evaluate's text report (-o) written where the page would go.
+	page := filepath.Join(dir, "..", "2026", PageFile)
+	if err := PrepareFolder(dir, map[string]string{"-o": page}, "digs.csv"); err == nil || !strings.Contains(err.Error(), "name the same file") {
+		t.Errorf("-o %s: %v", page, err)
 	}
 }
 
