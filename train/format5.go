@@ -164,6 +164,9 @@ func encode5(w io.Writer, b *Bundle, meta []byte) error {
 			head = binary.LittleEndian.AppendUint32(head, crc32.Checksum(s[spans[i][j]:spans[i][j+1]], castagnoli))
 		}
 	}
+	if at-headerLen > maxModelBytes {
+		return fmt.Errorf("the model would be %d MB, more than spade loads (%d MB); train on fewer digs, or with --max-samples", at>>20, maxModelBytes>>20)
+	}
 	binary.LittleEndian.PutUint64(head[12:], at-headerLen)
 	head = binary.LittleEndian.AppendUint32(head, crc32.Checksum(head, castagnoli))
 	for _, part := range append([][]byte{pad8(head)}, secs...) {
