@@ -5,6 +5,7 @@ import (
 	"io"
 
 	"github.com/spade-detect/spade/internal/cli"
+	"github.com/spade-detect/spade/internal/textui"
 
 	"github.com/spade-detect/spade/features"
 	"github.com/spf13/cobra"
@@ -48,8 +49,11 @@ func runFeatures(_ context.Context, g *globalOptions, opts featuresOptions, args
 		return err
 	}
 	defer f.Close()
+	// The bar follows both passes over a file (WriteFeatureTableFrom).
+	in, bar := textui.ReadingBar(g.stderr, f, "reading "+args[0], g.isTerminal && !g.quiet)
+	defer bar.Done()
 	return g.writeOutput(opts.output, func(w io.Writer) error {
-		log, err := features.WriteFeatureTableFrom(w, f, args[0], opts.log.readOptions())
+		log, err := features.WriteFeatureTableFrom(w, in, args[0], opts.log.readOptions())
 		if err == nil {
 			g.reportLog(log)
 			g.specNotes(features.SpecOf(log))

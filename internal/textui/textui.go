@@ -121,7 +121,8 @@ func NewProgress(w io.Writer, total int, what string, on bool) *Progress {
 
 // ReadingBar shows the bytes read from r on a bar over its size, when r
 // is a file that knows it (else a count), and returns the reader to read
-// through. Done clears it.
+// through. Done clears it. When r can seek, so can the reader returned, and
+// a seek back to the start (a second pass) starts the bar again, as pass 2.
 func ReadingBar(w io.Writer, r io.Reader, what string, on bool) (io.Reader, *Progress) {
 	total := int64(-1)
 	if f, ok := r.(interface{ Stat() (os.FileInfo, error) }); ok {
@@ -140,7 +141,35 @@ func ReadingBar(w io.Writer, r io.Reader, what string, on bool) (io.Reader, *Pro
 		progressbar.OptionClearOnFinish(),
 		progressbar.OptionThrottle(100_000_000),
 	)}
+	if s, ok := r.(io.Seeker); ok {
+		return &countingSeeker{countingReader: countingReader{r: r, p: p}, s: s, what: what}, p
+	}
 	return &countingReader{r: r, p: p}, p
+}
+
+// countingSeeker is a countingReader that seeks; back at the start, the
+// bar starts again.
+type countingSeeker struct {
+	countingReader
+	s    io.Seeker
+	what string
+	read bool // anything read yet
+}
+
+func (c *countingSeeker) Read(b []byte) (int, error) {
+	n, err := c.countingReader.Read(b)
+	c.read = c.read || n > 0
+	return n, err
+}
+
+func (c *countingSeeker) Seek(offset int64, whence int) (int64, error) {
+	at, err := c.s.Seek(offset, whence)
+	if err == nil && at == 0 && c.read && c.p.bar != nil {
+		c.p.bar.Reset()
+		c.p.bar.Describe(c.what + ", pass 2")
+		c.read = false
+	}
+	return at, err
 }
 
 // countingReader steps a bar by the bytes read through it.

@@ -94,3 +94,48 @@ func TestReadingBarPassesBytesThrough(t *testing.T) {
 		}
 	}
 }
+
+// TestReadingBarSeeks: over a file, the reader behind the bar seeks, so
+// that a two-pass reader (spade features) still streams; a seek back to
+// the start after reading starts the bar again as the second pass (not
+// the seek that asks where it is first), and the second pass gives the
+// same bytes.
+func TestReadingBarSeeks(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "log.csv")
+	data := []byte(strings.Repeat("dig,material,shape\n", 5000))
+	if err := os.WriteFile(path, data, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	var screen bytes.Buffer
+	r, bar := ReadingBar(&screen, f, "reading log.csv", true)
+	s, ok := r.(io.ReadSeeker)
+	if !ok {
+		t.Fatal("the reader behind the bar does not seek")
+	}
+	if at, err := s.Seek(0, io.SeekCurrent); err != nil || at != 0 {
+		t.Fatalf("seek before reading: %d, %v", at, err)
+	}
+	first, _ := io.ReadAll(s)
+	if st := bar.bar.State(); st.CurrentNum != int64(len(data)) || strings.Contains(st.Description, "pass 2") {
+		t.Errorf("after the first pass: %+v", st)
+	}
+	if _, err := s.Seek(0, io.SeekStart); err != nil {
+		t.Fatal(err)
+	}
+	if st := bar.bar.State(); st.CurrentNum != 0 || !strings.Contains(st.Description, "pass 2") {
+		t.Errorf("back at the start: %+v", st)
+	}
+	second, _ := io.ReadAll(s)
+	if st := bar.bar.State(); st.CurrentNum != int64(len(data)) {
+		t.Errorf("after the second pass: %+v", st)
+	}
+	bar.Done()
+	if !bytes.Equal(first, data) || !bytes.Equal(second, data) {
+		t.Errorf("passes of %d and %d bytes, want %d", len(first), len(second), len(data))
+	}
+}
