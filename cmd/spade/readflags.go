@@ -50,10 +50,7 @@ func (g *globalOptions) readLog(name string, opts features.ReadOptions) (*featur
 
 // reportLog says what reading a log skipped, ignored and noted.
 func (g *globalOptions) reportLog(log *features.Log) {
-	g.reportRead(log.Bad, log.Ignored)
-	for _, n := range log.Notes {
-		g.note("note: %s", n)
-	}
+	g.reportRead(log.Bad, log.Ignored, log.Notes)
 	if log.BlankRows > 0 && g.verbose {
 		g.note("skipped %d empty row(s)", log.BlankRows)
 	}
@@ -62,8 +59,9 @@ func (g *globalOptions) reportLog(log *features.Log) {
 	}
 }
 
-// reportRead says once which rows were skipped and which columns ignored.
-func (g *globalOptions) reportRead(bad []*features.ParseError, ignored []string) {
+// reportRead says once which rows were skipped and which columns ignored,
+// and the reader's notes.
+func (g *globalOptions) reportRead(bad []*features.ParseError, ignored, notes []string) {
 	for _, b := range bad {
 		g.note("skipped: %v", b)
 	}
@@ -72,6 +70,9 @@ func (g *globalOptions) reportRead(bad []*features.ParseError, ignored []string)
 	}
 	if len(ignored) > 0 && g.verbose {
 		g.note("columns kept out of the model: %s", strings.Join(ignored, ", "))
+	}
+	for _, n := range notes {
+		g.note("note: %s", n)
 	}
 }
 

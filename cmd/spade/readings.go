@@ -41,10 +41,7 @@ func readingSource(g *globalOptions, opts classifyOptions, args []string) (func(
 	next := func() (features.Dig, error) {
 		d, err := rd.Next()
 		if errors.Is(err, io.EOF) {
-			g.reportRead(rd.Bad, rd.Ignored())
-			for _, n := range rd.Notes {
-				g.note("note: %s", n)
-			}
+			g.reportRead(rd.Bad, rd.Ignored(), rd.Notes)
 		}
 		return d, err
 	}
