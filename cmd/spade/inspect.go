@@ -35,7 +35,7 @@ func runInspect(_ context.Context, g *globalOptions, opts inspectOptions, args [
 	if err := opts.format.check(); err != nil {
 		return err
 	}
-	b, err := train.Load(args[0])
+	b, err := train.LoadWith(args[0], train.LoadOptions{NoOutOfBag: true, Whitened: true, Mapped: true}) // as classify: what it shows is checked
 	if err != nil {
 		return err
 	}
