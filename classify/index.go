@@ -5,11 +5,9 @@ import (
 )
 
 // indexMinRows is the history length from which nearest uses the k-d
-// index instead of the scan. Measured with BenchmarkNearest (one run, this
-// 2-core machine, since the incremental bound): the index wins at every
-// size tried, 300 digs (3.1 against 4.4 µs) to 100,000 (50 against 480
-// µs); below this a scan takes a few microseconds and is kept.
-const indexMinRows = 256
+// index instead of the scan (kdtree.MinRows, measured with
+// BenchmarkNearest).
+const indexMinRows = kdtree.MinRows
 
 // indexAfter is how many searches go by the scan before the index is
 // built: building it costs about a hundred searches' saving at every size

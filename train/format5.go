@@ -178,13 +178,14 @@ func encode5(w io.Writer, b *Bundle, meta []byte) error {
 
 // neighbourIndex is the k-d index of the training vectors (flat, row
 // after row) whitened by the model's Whitening, as classify whitens them;
-// nil without a whitening.
+// nil without a whitening, or for a history too short for an index to
+// beat the scan (kdtree.MinRows), whose vectors classify whitens itself.
 func (b *Bundle) neighbourIndex(flat []float64) *kdtree.Tree {
 	w := b.Whitening
-	if w == nil || len(flat) == 0 {
+	p := b.Spec.Len()
+	if w == nil || len(flat) < kdtree.MinRows*p {
 		return nil
 	}
-	p := b.Spec.Len()
 	white := make([]float64, len(flat))
 	for i := 0; i < len(flat); i += p {
 		w.Apply(flat[i:i+p], white[i:i+p])

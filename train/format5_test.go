@@ -2,6 +2,7 @@ package train
 
 import (
 	"bytes"
+	"context"
 	"encoding/binary"
 	"errors"
 	"hash/crc32"
@@ -12,6 +13,7 @@ import (
 	"testing"
 
 	"github.com/spade-detect/spade/features"
+	"github.com/spade-detect/spade/internal/kdtree"
 	"gonum.org/v1/gonum/stat"
 )
 
@@ -272,5 +274,33 @@ func TestFormat5RefusesHostileSections(t *testing.T) {
 	}
 	if _, err := Unmarshal(reseal(good)); err != nil {
 		t.Fatalf("resealed unchanged: %v", err)
+	}
+}
+
+// TestShortHistoryHoldsNoIndex: below kdtree.MinRows digs a scan is as fast
+// as an index, so the file holds none, and classify's load keeps the
+// vectors (to whiten and scan) rather than leaving them out.
+func TestShortHistoryHoldsNoIndex(t *testing.T) {
+	ds, spec := demo(t)
+	idx := make([]int, kdtree.MinRows-1)
+	for i := range idx {
+		idx[i] = i * 5
+	}
+	small, err := TrainDataset(context.Background(), ds.Subset(idx), spec, TrainOptions{Forest: Options{Trees: 3, Seed: 1}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	data, err := withWhitening(small).Marshal()
+	if err != nil {
+		t.Fatal(err)
+	}
+	path := filepath.Join(t.TempDir(), "m.spade")
+	os.WriteFile(path, data, 0o644)
+	lean, err := LoadWith(path, LoadOptions{NoOutOfBag: true, Whitened: true, Mapped: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if lean.Training.Index != nil || len(lean.Training.Vectors) != len(idx) {
+		t.Errorf("a %d-dig history: index %v, %d vectors", len(idx), lean.Training.Index != nil, len(lean.Training.Vectors))
 	}
 }
