@@ -157,6 +157,15 @@ func FuzzUnmarshal(f *testing.F) {
 	f.Add(good[headerLen : len(good)-32])
 	f.Add([]byte("SPADEMDL"))
 	f.Fuzz(func(t *testing.T, data []byte) {
+		// Format 5's decoder itself, as LoadWith calls it (no recover
+		// around it, as Unmarshal has): any panic fails the run.
+		for _, o := range []LoadOptions{{}, {NoOutOfBag: true, Whitened: true}} {
+			if len(data) >= headerLen && binary.LittleEndian.Uint16(data[8:]) == format5 && string(data[:len(magic)]) == magic {
+				own := aligned(uint64(len(data)))
+				copy(own, reseal(data))
+				decode5(own, o)
+			}
+		}
 		for _, d := range [][]byte{data, resign(data), reseal(data)} {
 			b, err := Unmarshal(d)
 			if err != nil {

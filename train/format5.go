@@ -333,6 +333,9 @@ func parse5(data []byte) (*file5, []byte, error) {
 	// The sections follow one another, each at the next multiple of 8,
 	// with zero bytes between (which no checksum covers).
 	next := align8(at + 4)
+	if next > uint64(len(data)) {
+		return nil, nil, fmt.Errorf("%w: truncated after the head checksum", ErrCorrupt)
+	}
 	gaps := [][]byte{data[metaEnd:align8(metaEnd)], data[at+4 : next]}
 	for i := range f.secs {
 		row := data[align8(metaEnd)+16*uint64(i):]

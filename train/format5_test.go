@@ -304,3 +304,31 @@ func TestShortHistoryHoldsNoIndex(t *testing.T) {
 		t.Errorf("a %d-dig history: index %v, %d vectors", len(idx), lean.Training.Index != nil, len(lean.Training.Vectors))
 	}
 }
+
+// TestFormat5CutAfterTheHead: a file of metadata and empty sections that
+// ends a few bytes after its head checksum, its header's length and that
+// checksum made to match (a hostile file, not a damaged one), is refused
+// as corrupt by a load from a file, which no recover guards: before,
+// finding the padding after the head sliced past the end.
+func TestFormat5CutAfterTheHead(t *testing.T) {
+	b, _ := smallScreenModel(t, features.LabelBoth)
+	good, _ := withWhitening(b).Marshal()
+	table, offs, _ := sections5(good)
+	head := bytes.Clone(good[:table+16*len(offs)])
+	for i := range offs {
+		binary.LittleEndian.PutUint64(head[table+16*i:], 0)
+		binary.LittleEndian.PutUint64(head[table+16*i+8:], 0) // empty: no block checksums
+	}
+	for _, extra := range []int{0, 1, 2, 3} {
+		cut := append(bytes.Clone(head), make([]byte, 4+extra)...)
+		binary.LittleEndian.PutUint64(cut[12:], uint64(len(cut)-headerLen))
+		binary.LittleEndian.PutUint32(cut[len(head):], crc32.Checksum(cut[:len(head)], castagnoli))
+		path := filepath.Join(t.TempDir(), "m.spade")
+		os.WriteFile(path, cut, 0o644)
+		for _, o := range []LoadOptions{{}, {Mapped: true}} {
+			if _, err := LoadWith(path, o); !errors.Is(err, ErrCorrupt) {
+				t.Errorf("cut %d bytes after the head checksum, %+v: %v", extra, o, err)
+			}
+		}
+	}
+}
