@@ -340,7 +340,7 @@ func parse5(data []byte) (*file5, []byte, error) {
 	for i := range f.secs {
 		row := data[align8(metaEnd)+16*uint64(i):]
 		off, n := binary.LittleEndian.Uint64(row), binary.LittleEndian.Uint64(row[8:])
-		if off != next || n > uint64(len(data))-off {
+		if off != next || off > uint64(len(data)) || n > uint64(len(data))-off {
 			return nil, nil, fmt.Errorf("%w: section %d at %d of %d bytes, out of place", ErrCorrupt, i, off, n)
 		}
 		f.secs[i] = data[off : off+n : off+n]

@@ -332,3 +332,40 @@ func TestFormat5CutAfterTheHead(t *testing.T) {
 		}
 	}
 }
+
+// TestFormat5LastSectionPastTheEnd: a hostile file whose last section
+// starts past its end, where the one before it ends within the last 8
+// bytes, is refused as corrupt, not sliced past the end.
+func TestFormat5LastSectionPastTheEnd(t *testing.T) {
+	b, _ := smallScreenModel(t, features.LabelBoth)
+	good, _ := withWhitening(b).Marshal()
+	table, offs, _ := sections5(good)
+	nsec := len(offs)
+	out := bytes.Clone(good[:table+16*nsec])
+	body := []byte("abcde")
+	at := len(out) + 4 // one block checksum, of section nsec-2
+	next := int(align8(uint64(at + 4)))
+	for i := range nsec {
+		off, n := next, 0
+		switch i {
+		case nsec - 2:
+			n = len(body)
+		case nsec - 1:
+			off = int(align8(uint64(next + len(body))))
+		}
+		binary.LittleEndian.PutUint64(out[table+16*i:], uint64(off))
+		binary.LittleEndian.PutUint64(out[table+16*i+8:], uint64(n))
+	}
+	out = binary.LittleEndian.AppendUint32(out, crc32.Checksum(body, castagnoli))
+	out = append(out, make([]byte, next-len(out))...)
+	out = append(out, body...)
+	binary.LittleEndian.PutUint64(out[12:], uint64(len(out)-headerLen))
+	binary.LittleEndian.PutUint32(out[at:], crc32.Checksum(out[:at], castagnoli))
+	path := filepath.Join(t.TempDir(), "m.spade")
+	os.WriteFile(path, out, 0o644)
+	for _, o := range []LoadOptions{{}, {Mapped: true}} {
+		if _, err := LoadWith(path, o); !errors.Is(err, ErrCorrupt) {
+			t.Errorf("%+v: %v", o, err)
+		}
+	}
+}
