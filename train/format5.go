@@ -280,9 +280,8 @@ func indexNodes(b []byte) []kdtree.Node {
 	})
 }
 
-// file5 is a format 5 file being read: its bytes and its sections'.
+// file5 is a format 5 file being read: its sections' bytes and checksums.
 type file5 struct {
-	data   []byte
 	secs   [][]byte
 	blocks [][]byte // each section's block checksums, 4 bytes each
 }
@@ -309,7 +308,7 @@ func parse5(data []byte) (*file5, []byte, error) {
 	if nsec < forestSections+trainingSections || (nsec-trainingSections)%forestSections != 0 {
 		return nil, nil, fmt.Errorf("%w: %d sections", ErrCorrupt, nsec)
 	}
-	f := &file5{data: data, secs: make([][]byte, nsec), blocks: make([][]byte, nsec)}
+	f := &file5{secs: make([][]byte, nsec), blocks: make([][]byte, nsec)}
 	at := tableEnd
 	length := func(i uint64) uint64 { return binary.LittleEndian.Uint64(data[align8(metaEnd)+16*i+8:]) }
 	for i := range uint64(nsec) {
@@ -363,9 +362,9 @@ func parse5(data []byte) (*file5, []byte, error) {
 // block is one block checksum's span: section sec's ith MiB.
 type block struct{ sec, i int }
 
-// blocksOf are the block checksums of the sections marked in want but the
+// blockList is the block checksums of the sections marked in want but the
 // forests' nodes, whose checksums are by tree.
-func (f *file5) blocksOf(want []bool) []block {
+func (f *file5) blockList(want []bool) []block {
 	var todo []block
 	for s, w := range want {
 		if !w || s < len(f.secs)-trainingSections && s%forestSections == secNodes {
@@ -436,7 +435,7 @@ func decode5(data []byte, o LoadOptions) (*Bundle, error) {
 	// where there is none.
 	wt[secVectors] = !(o.Whitened && hasIndex)
 	bad := make([]atomic.Bool, nsec)
-	for _, bl := range f.blocksOf(small) {
+	for _, bl := range f.blockList(small) {
 		if !f.sumOK(bl) {
 			bad[bl.sec].Store(true)
 		}
@@ -459,7 +458,7 @@ func decode5(data []byte, o LoadOptions) (*Bundle, error) {
 			trees = append(trees, tree{i, t})
 		}
 	}
-	blocks := f.blocksOf(want)
+	blocks := f.blockList(want)
 	used := make([]treeUse, len(trees))
 	errs := make([]error, len(trees))
 	var trainErr error
